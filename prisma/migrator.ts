@@ -1,0 +1,133 @@
+/**
+ * Offline migration helper: creates, applies and drift-checks Prisma migrations with the
+ * schema engine compiled to WebAssembly, so no native engine has to be downloaded.
+ * It writes the same `prisma/migrations/<timestamp>_<name>/migration.sql` layout and fills
+ * `_prisma_migrations` exactly like the Prisma CLI, so the CLI can take over later.
+ */
+import fs from "node:fs";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import { createRequire } from "node:module";
+import { PrismaBetterSqlite3 } from "@prisma/adapter-better-sqlite3";
+import { bindMigrationAwareSqlAdapterFactory } from "@prisma/driver-adapter-utils";
+import * as bg from "@prisma/schema-engine-wasm/schema_engine_bg";
+
+const prismaDir = path.dirname(fileURLToPath(import.meta.url));
+export const schemaPath = path.join(prismaDir, "schema.prisma");
+export const migrationsDir = path.join(prismaDir, "migrations");
+const lockfileContent = 'provider = "sqlite"\n';
+const noFilters = { externalTables: [], externalEnums: [] };
+
+/** `file:./data/x.db` or a plain path → an absolute file path (":memory:" passes through). */
+export function databaseFileFromUrl(url: string): string {
+  const raw = url.startsWith("file:") ? url.slice("file:".length) : url;
+  return raw === ":memory:" ? raw : path.resolve(raw);
+}
+
+let wasmReady = false;
+function loadWasm(): void {
+  if (wasmReady) return;
+  const require = createRequire(import.meta.url);
+  const wasmPath = path.join(path.dirname(require.resolve("@prisma/schema-engine-wasm")), "schema_engine_bg.wasm");
+  const module = new WebAssembly.Module(fs.readFileSync(wasmPath));
+  const instance = new WebAssembly.Instance(module, { "./schema_engine_bg.js": bg as never });
+  (bg as unknown as { __wbg_set_wasm(x: unknown): void }).__wbg_set_wasm(instance.exports);
+  (instance.exports as unknown as { __wbindgen_start(): void }).__wbindgen_start();
+  wasmReady = true;
+}
+
+/**
+ * The engine sends whole migration files to the shadow database as one statement, which
+ * better-sqlite3 refuses ("more than one statement"); run argument-less SQL as a script there.
+ */
+class ShadowScriptAdapterFactory extends PrismaBetterSqlite3 {
+  override async connectToShadowDb() {
+    const adapter = await super.connectToShadowDb();
+    const executeRaw = adapter.executeRaw.bind(adapter);
+    adapter.executeRaw = async (query) => {
+      if (query.args.length === 0) {
+        await adapter.executeScript(query.sql);
+        return 0;
+      }
+      return executeRaw(query);
+    };
+    return adapter;
+  }
+}
+
+async function openEngine(databaseFile: string) {
+  loadWasm();
+  const schema = fs.readFileSync(schemaPath, "utf8");
+  const factory = new ShadowScriptAdapterFactory({ url: databaseFile });
+  const engine = await bg.SchemaEngine.new(
+    { datamodels: [[schemaPath, schema]] } as never,
+    () => {},
+    bindMigrationAwareSqlAdapterFactory(factory),
+  );
+  return { engine, schema };
+}
+
+/** Reads prisma/migrations into the structure the engine expects. */
+export function readMigrationList() {
+  const directories = fs.existsSync(migrationsDir)
+    ? fs
+        .readdirSync(migrationsDir, { withFileTypes: true })
+        .filter((entry) => entry.isDirectory())
+        .map((entry) => entry.name)
+        .sort()
+    : [];
+  return {
+    baseDir: migrationsDir,
+    shadowDbInitScript: "",
+    lockfile: { path: "migration_lock.toml", content: lockfileContent },
+    migrationDirectories: directories.map((name) => ({
+      path: name,
+      migrationFile: {
+        path: "migration.sql",
+        content: { tag: "ok" as const, value: fs.readFileSync(path.join(migrationsDir, name, "migration.sql"), "utf8") },
+      },
+    })),
+  };
+}
+
+async function diffMigrationsToSchema(exitCode: boolean) {
+  const { engine, schema } = await openEngine(":memory:");
+  const result = await engine.diff({
+    from: { tag: "migrations", ...readMigrationList() },
+    to: { tag: "schemaDatamodel", files: [{ path: schemaPath, content: schema }] },
+    script: true,
+    exitCode,
+    filters: noFilters,
+  } as never);
+  return result as { exitCode: number; stdout: string };
+}
+
+/** Drift check: 0 when the migrations produce schema.prisma exactly, 2 when a migration is missing. */
+export async function checkDrift(): Promise<{ exitCode: number; sql: string }> {
+  const result = await diffMigrationsToSchema(true);
+  return { exitCode: result.exitCode, sql: result.stdout };
+}
+
+/** Writes a new migration folder from the difference, or returns null when nothing changed. */
+export async function createMigration(name: string, now = new Date()): Promise<string | null> {
+  if (!/^[a-z0-9_]+$/.test(name)) throw new Error("Migration name: use lower-case letters, digits and _");
+  const { stdout } = await diffMigrationsToSchema(false);
+  if (stdout.includes("This is an empty migration")) return null;
+  const stamp = now.toISOString().replace(/[-:T]/g, "").slice(0, 14);
+  const folder = path.join(migrationsDir, `${stamp}_${name}`);
+  fs.mkdirSync(folder, { recursive: true });
+  fs.writeFileSync(path.join(folder, "migration.sql"), stdout);
+  fs.writeFileSync(path.join(migrationsDir, "migration_lock.toml"), lockfileContent);
+  return folder;
+}
+
+/** Applies pending migrations to the database file; returns the names applied. */
+export async function applyMigrations(databaseUrl: string): Promise<string[]> {
+  const databaseFile = databaseFileFromUrl(databaseUrl);
+  if (databaseFile !== ":memory:") fs.mkdirSync(path.dirname(databaseFile), { recursive: true });
+  const { engine } = await openEngine(databaseFile);
+  const output = (await engine.applyMigrations({ migrationsList: readMigrationList(), filters: noFilters } as never)) as {
+    appliedMigrationNames: string[];
+  };
+  return output.appliedMigrationNames;
+}
