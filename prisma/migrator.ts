@@ -29,8 +29,10 @@ function loadWasm(): void {
   if (wasmReady) return;
   const require = createRequire(import.meta.url);
   const wasmPath = path.join(path.dirname(require.resolve("@prisma/schema-engine-wasm")), "schema_engine_bg.wasm");
-  const module = new WebAssembly.Module(fs.readFileSync(wasmPath));
-  const instance = new WebAssembly.Instance(module, { "./schema_engine_bg.js": bg as never });
+  // Node has WebAssembly built in; its types are not in the ES lib this project compiles against.
+  const wasm = (globalThis as unknown as { WebAssembly: { Module: new (bytes: Buffer) => object; Instance: new (m: object, imports: object) => { exports: unknown } } }).WebAssembly;
+  const module = new wasm.Module(fs.readFileSync(wasmPath));
+  const instance = new wasm.Instance(module, { "./schema_engine_bg.js": bg });
   (bg as unknown as { __wbg_set_wasm(x: unknown): void }).__wbg_set_wasm(instance.exports);
   (instance.exports as unknown as { __wbindgen_start(): void }).__wbindgen_start();
   wasmReady = true;
@@ -41,8 +43,22 @@ function loadWasm(): void {
  * better-sqlite3 refuses ("more than one statement"); run argument-less SQL as a script there.
  */
 class ShadowScriptAdapterFactory extends PrismaBetterSqlite3 {
+  /** Every connection the engine opened, closed again by `closeAll` so the file is not left locked. */
+  readonly opened: Array<{ dispose(): Promise<void> }> = [];
+
+  override async connect() {
+    const adapter = await super.connect();
+    this.opened.push(adapter);
+    return adapter;
+  }
+
+  async closeAll() {
+    for (const adapter of this.opened.splice(0)) await adapter.dispose();
+  }
+
   override async connectToShadowDb() {
     const adapter = await super.connectToShadowDb();
+    this.opened.push(adapter);
     const executeRaw = adapter.executeRaw.bind(adapter);
     adapter.executeRaw = async (query) => {
       if (query.args.length === 0) {
@@ -64,7 +80,11 @@ async function openEngine(databaseFile: string) {
     () => {},
     bindMigrationAwareSqlAdapterFactory(factory),
   );
-  return { engine, schema };
+  const close = async () => {
+    engine.free();
+    await factory.closeAll();
+  };
+  return { engine, schema, close };
 }
 
 /** Reads prisma/migrations into the structure the engine expects. */
@@ -91,14 +111,14 @@ export function readMigrationList() {
 }
 
 async function diffMigrationsToSchema(exitCode: boolean) {
-  const { engine, schema } = await openEngine(":memory:");
+  const { engine, schema, close } = await openEngine(":memory:");
   const result = await engine.diff({
     from: { tag: "migrations", ...readMigrationList() },
     to: { tag: "schemaDatamodel", files: [{ path: schemaPath, content: schema }] },
     script: true,
     exitCode,
     filters: noFilters,
-  } as never);
+  } as never).finally(close);
   return result as { exitCode: number; stdout: string };
 }
 
@@ -125,8 +145,8 @@ export async function createMigration(name: string, now = new Date()): Promise<s
 export async function applyMigrations(databaseUrl: string): Promise<string[]> {
   const databaseFile = databaseFileFromUrl(databaseUrl);
   if (databaseFile !== ":memory:") fs.mkdirSync(path.dirname(databaseFile), { recursive: true });
-  const { engine } = await openEngine(databaseFile);
-  const output = (await engine.applyMigrations({ migrationsList: readMigrationList(), filters: noFilters } as never)) as {
+  const { engine, close } = await openEngine(databaseFile);
+  const output = (await engine.applyMigrations({ migrationsList: readMigrationList(), filters: noFilters } as never).finally(close)) as {
     appliedMigrationNames: string[];
   };
   return output.appliedMigrationNames;

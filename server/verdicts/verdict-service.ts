@@ -1,0 +1,144 @@
+/**
+ * Applies the verdict engine to stored readings. Each tube's `verdict`/`percent` columns cache
+ * the evaluation of its newest session, so the stock list can filter by verdict through an index;
+ * they are recomputed whenever that tube's readings or the thresholds change.
+ */
+import type Database from "better-sqlite3";
+import type { TypeCatalog } from "../types/type-catalog.ts";
+import type { SettingsService } from "../settings/settings-service.ts";
+import { evaluateTube, type SectionReading, type TestConditions, type TubeResult, type VerdictThresholds } from "../engine/verdicts/index.ts";
+import type { TubeTypeSpec } from "../engine/tube-types/index.ts";
+
+export interface StoredReading {
+  section: number;
+  gmMicroSiemens: number | null;
+  plateMilliamps: number | null;
+  emissionValue: number | null;
+  emissionPassMark: number | null;
+  emissionFullScale: number | null;
+  gridMicroamps: number | null;
+  leakageMicroamps: number | null;
+  shorts: string;
+  heaterOpen: boolean | number;
+}
+
+export interface StoredConditions {
+  heaterVolts: number | null;
+  plateVolts: number | null;
+  screenVolts: number | null;
+  gridVolts: number | null;
+}
+
+export function toSectionReading(reading: StoredReading): SectionReading {
+  return {
+    section: reading.section,
+    transconductanceMicroSiemens: reading.gmMicroSiemens,
+    plateMilliamps: reading.plateMilliamps,
+    emission:
+      reading.emissionValue !== null && reading.emissionPassMark !== null && reading.emissionFullScale !== null
+        ? { value: reading.emissionValue, passMark: reading.emissionPassMark, fullScale: reading.emissionFullScale }
+        : null,
+    gridCurrentMicroamps: reading.gridMicroamps,
+    leakageMicroamps: reading.leakageMicroamps,
+    shorts: reading.shorts ? reading.shorts.split(",").filter(Boolean) : [],
+    heaterOpen: reading.heaterOpen === true || reading.heaterOpen === 1,
+  };
+}
+
+export function toConditions(session: StoredConditions): TestConditions {
+  return { heaterVolts: session.heaterVolts, plateVolts: session.plateVolts, screenVolts: session.screenVolts, gridVolts: session.gridVolts };
+}
+
+/**
+ * Judges one tube's readings of one session. Stored readings were validated on entry, so an
+ * engine refusal here means data changed underneath (e.g. a type lost a section): the tube is
+ * then shown as untested with the engine's reason rather than failing the page.
+ */
+export function judgeTube(spec: TubeTypeSpec, conditions: StoredConditions, readings: StoredReading[], thresholds: VerdictThresholds): TubeResult {
+  const result = evaluateTube(spec.sections, toConditions(conditions), readings.map(toSectionReading), thresholds, { heater: spec.heater });
+  if (result.ok) return result;
+  return { sections: [], balancePercent: null, balanceBasis: null, balanceOk: null, unbalanced: false, verdict: "untested", reasons: [result.reason] };
+}
+
+/** The lowest percent-of-reference over the sections, or null when none was comparable. */
+export function lowestPercent(result: TubeResult): number | null {
+  const values = result.sections.map((s) => s.percentOfReference).filter((p): p is number => p !== null);
+  return values.length ? Math.min(...values) : null;
+}
+
+/** Adds display text (rounded percent, balance) to an evaluation, so templates only print. */
+export function presentEvaluation(result: TubeResult) {
+  return {
+    ...result,
+    sections: result.sections.map((section) => ({
+      ...section,
+      percentText: section.percentOfReference === null ? "" : `${Math.round(section.percentOfReference)} %`,
+    })),
+    balanceText: result.balancePercent === null ? "" : `sections differ by ${result.balancePercent.toFixed(1)} %`,
+  };
+}
+
+type JoinedRow = StoredReading & StoredConditions & { tubeId: number; typeId: number; sessionId: number };
+
+export class VerdictService {
+  constructor(
+    private readonly sqlite: Database.Database,
+    private readonly catalog: TypeCatalog,
+    private readonly settings: SettingsService,
+  ) {}
+
+  thresholds(): Promise<VerdictThresholds> {
+    return this.settings.thresholds();
+  }
+
+  evaluate(spec: TubeTypeSpec, conditions: StoredConditions, readings: StoredReading[], thresholds: VerdictThresholds) {
+    return presentEvaluation(judgeTube(spec, conditions, readings, thresholds));
+  }
+
+  /**
+   * Recomputes the cached verdict of the given tubes (or all tubes) from their newest session.
+   * Runs in its own transaction unless the caller is already inside one on this connection.
+   */
+  async recompute(tubeIds?: number[]): Promise<void> {
+    const thresholds = await this.settings.thresholds();
+    this.recomputeWith(thresholds, tubeIds);
+  }
+
+  recomputeWith(thresholds: VerdictThresholds, tubeIds?: number[]): void {
+    const all = !tubeIds || tubeIds.length > 400;
+    if (tubeIds && tubeIds.length === 0) return;
+    const select =
+      `SELECT r.tubeId, t.typeId, r.sessionId, r.section, r.gmMicroSiemens, r.plateMilliamps, r.emissionValue, r.emissionPassMark,
+              r.emissionFullScale, r.gridMicroamps, r.leakageMicroamps, r.shorts, r.heaterOpen,
+              s.heaterVolts, s.plateVolts, s.screenVolts, s.gridVolts
+       FROM Reading r JOIN TestSession s ON s.id = r.sessionId JOIN Tube t ON t.id = r.tubeId ` +
+      (all ? "" : `WHERE r.tubeId IN (${tubeIds!.map(() => "?").join(",")}) `) +
+      "ORDER BY r.tubeId, s.date DESC, s.id DESC, r.section";
+    const update = this.sqlite.prepare("UPDATE Tube SET verdict = ?, percent = ? WHERE id = ?");
+    const run = () => {
+      if (all) this.sqlite.prepare("UPDATE Tube SET verdict = 'untested', percent = NULL").run();
+      else for (const id of tubeIds!) update.run("untested", null, id);
+      let group: JoinedRow[] = [];
+      const flush = () => {
+        if (!group.length) return;
+        const first = group[0];
+        const spec = this.catalog.get(first.typeId)?.spec;
+        if (spec) {
+          const result = judgeTube(spec, first, group, thresholds);
+          update.run(result.verdict, lowestPercent(result), first.tubeId);
+        }
+        group = [];
+      };
+      const statement = this.sqlite.prepare(select);
+      for (const row of statement.iterate(...(all ? [] : tubeIds!)) as IterableIterator<JoinedRow>) {
+        if (group.length && row.tubeId !== group[0].tubeId) flush();
+        // Only the newest session of each tube counts; older rows of the same tube are skipped.
+        if (group.length && row.sessionId !== group[0].sessionId) continue;
+        group.push(row);
+      }
+      flush();
+    };
+    if (this.sqlite.inTransaction) run();
+    else this.sqlite.transaction(run)();
+  }
+}
