@@ -118,6 +118,8 @@ export class VerdictService {
     const run = () => {
       if (all) this.sqlite.prepare("UPDATE Tube SET verdict = 'untested', percent = NULL").run();
       else for (const id of tubeIds!) update.run("untested", null, id);
+      // better-sqlite3 cannot write while a statement is being iterated: collect, then update.
+      const updates: Array<[string, number | null, number]> = [];
       let group: JoinedRow[] = [];
       const flush = () => {
         if (!group.length) return;
@@ -125,7 +127,7 @@ export class VerdictService {
         const spec = this.catalog.get(first.typeId)?.spec;
         if (spec) {
           const result = judgeTube(spec, first, group, thresholds);
-          update.run(result.verdict, lowestPercent(result), first.tubeId);
+          updates.push([result.verdict, lowestPercent(result), first.tubeId]);
         }
         group = [];
       };
@@ -137,6 +139,7 @@ export class VerdictService {
         group.push(row);
       }
       flush();
+      for (const values of updates) update.run(...values);
     };
     if (this.sqlite.inTransaction) run();
     else this.sqlite.transaction(run)();

@@ -7,7 +7,7 @@ import type { AppConfig } from "../../server/config.ts";
 
 export async function makeTestApp(config: Partial<AppConfig> = {}) {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), "tubeledger-test-"));
-  const app = await buildApp({ config: { databaseUrl: `file:${path.join(dir, "test.db")}`, ...config } });
+  const app = await buildApp({ config: { databaseUrl: `file:${path.join(dir, "test.db")}`, libraryDir: process.env.TEST_LIBRARY_DIR || undefined, ...config } });
   const close = async () => {
     await app.close();
     fs.rmSync(dir, { recursive: true, force: true });
