@@ -51,7 +51,7 @@ describe("bench sessions", () => {
 
   it("fills in the type of a known label", async () => {
     const response = await t.app.inject({ url: `/sessions/${sessionId}/lookup?label=R-1`, headers: { "hx-request": "true" } });
-    expect(response.body).toContain('value="12AU7"');
+    expect(response.body).toContain(`data-type="12AU7"`);
     expect(response.body).toContain("known tube");
     const unknown = await t.app.inject({ url: `/sessions/${sessionId}/lookup?label=NEW-9`, headers: { "hx-request": "true" } });
     expect(unknown.body).toContain("create this tube");

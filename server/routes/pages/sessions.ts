@@ -43,10 +43,8 @@ export default async function sessionPages(app: FastifyInstance) {
   app.get("/sessions/:id/lookup", async (request, reply) => {
     const query = lookupQuerySchema.parse(request.query);
     const tube = query.label ? await app.stock.findByLabel(query.label) : null;
-    const entry = tube ? app.catalog.resolve(tube.type) : undefined;
     return render(request, reply, "partials/sessions/lookup.eta", {
-      known: !!tube, label: query.label, type: tube?.type ?? "", sections: entry?.spec.sections.length ?? 2, tube, errors: {},
-      types: app.catalog.list().map((t) => t.designation),
+      known: !!tube, label: query.label, type: tube?.type ?? "", tube,
     });
   });
 
