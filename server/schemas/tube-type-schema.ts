@@ -1,0 +1,273 @@
+/**
+ * The zod mirror of `TubeTypeSpec` (server/engine/tube-types): validates one entry of the
+ * reference library in data/tube-types/*.json, and user-added types from forms and the API.
+ *
+ * This schema checks each type on its own (forms, ranges, pins and sections that refer to
+ * each other). Rules that need the whole library or physics across fields (aliases unique
+ * across types, variant chains, dissipation, Barkhausen's µ = gm·rp) live in
+ * server/library/load-library.ts `checkLibraryConsistency`.
+ */
+import { z } from "zod";
+import type {
+  BaseFamily,
+  HeaterSpec,
+  MaxRatings,
+  OperatingPoint,
+  PinAssignment,
+  PinElement,
+  SectionKind,
+  SectionSpec,
+  TubeClass,
+  TubeTypeSpec,
+} from "../engine/tube-types/index.ts";
+
+// ── Enumerations (also used to build forms) ────────────────────────────────────────────────
+
+export const TUBE_CLASSES = [
+  "triode",
+  "dual-triode",
+  "pentode",
+  "dual-pentode",
+  "triode-pentode",
+  "beam-tetrode",
+  "diode",
+  "dual-diode",
+  "diode-triode",
+  "diode-pentode",
+  "rectifier",
+  "thyratron",
+  "voltage-regulator",
+  "indicator",
+  "vacuum-fluorescent",
+] as const satisfies readonly TubeClass[];
+
+export const BASE_FAMILIES = ["B7G", "B9A", "octal", "loctal", "subminiature", "B8G", "other"] as const satisfies readonly BaseFamily[];
+
+export const PIN_ELEMENTS = [
+  "a",
+  "g1",
+  "g2",
+  "g3",
+  "k",
+  "bp",
+  "h",
+  "hct",
+  "f",
+  "fct",
+  "s",
+  "ts",
+  "ic",
+  "nc",
+] as const satisfies readonly PinElement[];
+
+export const SECTION_KINDS = [
+  "triode",
+  "pentode",
+  "beam-tetrode",
+  "diode",
+  "rectifier",
+  "thyratron",
+  "regulator",
+  "indicator",
+] as const satisfies readonly SectionKind[];
+
+/** Elements that belong to one section; the others (heater, filament, shield, IC, NC) belong to the envelope. */
+export const SECTION_ELEMENTS: readonly PinElement[] = ["a", "g1", "g2", "g3", "k", "bp", "ts"];
+
+/** Plain-English names of the elements, for forms and messages. */
+export const PIN_ELEMENT_NAMES: Record<PinElement, string> = {
+  a: "plate",
+  g1: "control grid",
+  g2: "screen grid",
+  g3: "suppressor grid",
+  k: "cathode",
+  bp: "beam plates",
+  h: "heater",
+  hct: "heater centre tap",
+  f: "filament",
+  fct: "filament centre tap",
+  s: "internal shield",
+  ts: "target",
+  ic: "internal connection",
+  nc: "no connection",
+};
+
+// ── Field forms ────────────────────────────────────────────────────────────────────────────
+
+/**
+ * EIA, Pro Electron, CV and maker's numbers: upper-case letters and digits, optionally joined by
+ * a dash or slash ("12AU7", "ECC82", "6SN7GT", "OA2" with the letter O, "5U4GB", "CV4003").
+ */
+export const DESIGNATION_PATTERN = /^[0-9A-Z]+(?:[-/][0-9A-Z]+)*$/;
+
+/** Pin labels: "1".."14" on based types, "cap" for a top cap, short lead names on wire-ended types. */
+export const PIN_LABEL_PATTERN = /^(?:[0-9]{1,2}|cap|[a-z][a-z0-9-]{0,11})$/;
+
+/** EIA basing codes: a pin count and one to three letters ("9A", "7BK", "8BD", "5T"). */
+export const BASING_CODE_PATTERN = /^[0-9]{1,2}[A-Z]{1,3}$/;
+
+/**
+ * `sources` keys are field paths: "pins", "heater", "maxRatings" or "maxRatings.plateVolts",
+ * "sections.<section index>.typical.<0-based point>", "aliases". A key covers the fields below it.
+ */
+export const SOURCE_KEY_PATTERN = /^(?:pins|heater(?:\.[a-zA-Z]+)?|maxRatings(?:\.[a-zA-Z]+)?|aliases|class|basingCode|sections(?:\.[0-9]+(?:\.typical(?:\.[0-9]+)?)?)?)$/;
+
+/** A source names a document with its year, or says "derived: …" (from other sourced values), "entered by …" (user-added types), "common practice, no source" or the honest "from memory". */
+export const SOURCE_TEXT_PATTERN = /^(?:from memory|common practice, no source|derived: .+|entered by .+|.*\b(?:18|19|20)[0-9]{2}\b.*)$/;
+
+const designationSchema = (field: string) =>
+  z
+    .string({ error: `${field} must be text` })
+    .regex(DESIGNATION_PATTERN, `${field} must be upper-case letters and digits, optionally joined by - or / (e.g. 12AU7, ECC82)`);
+
+const positive = (field: string) =>
+  z.number({ error: `${field} must be a number` }).finite(`${field} must be finite`).positive(`${field} must be greater than zero`);
+
+const nonNegative = (field: string) =>
+  z.number({ error: `${field} must be a number` }).finite(`${field} must be finite`).nonnegative(`${field} must not be negative`);
+
+// ── Parts ──────────────────────────────────────────────────────────────────────────────────
+
+export const pinAssignmentSchema = z
+  .strictObject({
+    pin: z.string({ error: "pin label must be text" }).regex(PIN_LABEL_PATTERN, "pin label must be a number, \"cap\" or a short lead name"),
+    element: z.enum(PIN_ELEMENTS, { error: `pin element must be one of ${PIN_ELEMENTS.join(", ")}` }),
+    section: z.number({ error: "pin section must be a number" }).int("pin section must be a whole number").positive("pin section must be 1 or more").optional(),
+  })
+  .superRefine((pin, context) => {
+    if (pin.section !== undefined && !SECTION_ELEMENTS.includes(pin.element)) {
+      context.addIssue({
+        code: "custom",
+        path: ["section"],
+        message: `pin section is only for section electrodes (${SECTION_ELEMENTS.join(", ")}), not "${pin.element}"`,
+      });
+    }
+  });
+
+export const operatingPointSchema = z.strictObject({
+  plateVolts: positive("plate volts"),
+  gridVolts: z.number({ error: "grid volts must be a number" }).finite("grid volts must be finite"),
+  screenVolts: positive("screen volts").optional(),
+  plateMilliamps: nonNegative("plate milliamps"),
+  screenMilliamps: nonNegative("screen milliamps").optional(),
+  transconductanceMicroSiemens: positive("transconductance (µS)").optional(),
+  mu: positive("amplification factor µ").optional(),
+  plateResistanceOhms: positive("plate resistance (Ω)").optional(),
+  cathodeResistorOhms: positive("cathode resistor (Ω)").optional(),
+});
+
+export const sectionSpecSchema = z.strictObject({
+  index: z.number({ error: "section index must be a number" }).int("section index must be a whole number").positive("section index must be 1 or more"),
+  kind: z.enum(SECTION_KINDS, { error: `section kind must be one of ${SECTION_KINDS.join(", ")}` }),
+  typical: z.array(operatingPointSchema, { error: "section typical must be a list of operating points" }),
+});
+
+export const heaterSpecSchema = z.strictObject({
+  // Zero only on cold-cathode types (glow regulators); the library check enforces that.
+  volts: nonNegative("heater volts"),
+  amps: nonNegative("heater amps"),
+  centreTap: z
+    .strictObject({
+      half: z.strictObject({ volts: positive("heater half volts"), amps: positive("heater half amps") }),
+    })
+    .optional(),
+  warmUpSeconds: positive("heater warm-up seconds").optional(),
+  directlyHeated: z.boolean({ error: "directlyHeated must be true or false" }).optional(),
+});
+
+export const maxRatingsSchema = z.strictObject({
+  plateVolts: positive("maximum plate volts").optional(),
+  plateWatts: positive("maximum plate watts").optional(),
+  screenVolts: positive("maximum screen volts").optional(),
+  screenWatts: positive("maximum screen watts").optional(),
+  cathodeMilliamps: positive("maximum cathode milliamps").optional(),
+  heaterCathodeVolts: positive("maximum heater–cathode volts").optional(),
+  peakInverseVolts: positive("maximum peak inverse volts").optional(),
+  outputMilliamps: positive("maximum output milliamps").optional(),
+});
+
+// ── One type ───────────────────────────────────────────────────────────────────────────────
+
+export const tubeTypeSpecSchema = z
+  .strictObject({
+    designation: designationSchema("designation"),
+    aliases: z.array(designationSchema("alias"), { error: "aliases must be a list" }),
+    class: z.enum(TUBE_CLASSES, { error: `class must be one of ${TUBE_CLASSES.join(", ")}` }),
+    base: z.enum(BASE_FAMILIES, { error: `base must be one of ${BASE_FAMILIES.join(", ")}` }),
+    basingCode: z.string({ error: "basing code must be text" }).regex(BASING_CODE_PATTERN, "basing code must be a pin count and letters (e.g. 9A, 7BK)").optional(),
+    pins: z.array(pinAssignmentSchema, { error: "pins must be a list" }).min(1, "pins must list every pin"),
+    sections: z.array(sectionSpecSchema, { error: "sections must be a list" }).min(1, "sections must list at least one section"),
+    heater: heaterSpecSchema,
+    maxRatings: maxRatingsSchema,
+    variantOf: designationSchema("variantOf").optional(),
+    notes: z.string({ error: "notes must be text" }).max(2000, "notes must be at most 2000 characters").optional(),
+    sources: z.record(
+      z.string().regex(SOURCE_KEY_PATTERN),
+      z.string({ error: "source must be text" }).regex(SOURCE_TEXT_PATTERN, 'source must name a document with its year, or start with "derived: " or "entered by ", or say "from memory"'),
+      {
+        error: (issue) =>
+          issue.code === "invalid_key"
+            ? "sources key must be a field path such as heater, maxRatings.plateVolts or sections.1.typical.0"
+            : "sources must map field paths to where the values came from",
+      },
+    ),
+    userAdded: z.boolean({ error: "userAdded must be true or false" }).optional(),
+  })
+  .superRefine((spec, context) => {
+    const seenPins = new Set<string>();
+    spec.pins.forEach((pin, position) => {
+      if (seenPins.has(pin.pin)) context.addIssue({ code: "custom", path: ["pins", position, "pin"], message: `pin ${pin.pin} is listed twice` });
+      seenPins.add(pin.pin);
+    });
+
+    const seenAliases = new Set<string>();
+    spec.aliases.forEach((alias, position) => {
+      if (alias === spec.designation) context.addIssue({ code: "custom", path: ["aliases", position], message: `alias ${alias} repeats the designation` });
+      if (seenAliases.has(alias)) context.addIssue({ code: "custom", path: ["aliases", position], message: `alias ${alias} is listed twice` });
+      seenAliases.add(alias);
+    });
+
+    const sectionIndexes = spec.sections.map((section) => section.index);
+    spec.sections.forEach((section, position) => {
+      if (section.index !== position + 1) {
+        context.addIssue({ code: "custom", path: ["sections", position, "index"], message: `section index must be ${position + 1} (sections are numbered 1, 2, 3… in order)` });
+      }
+    });
+    spec.pins.forEach((pin, position) => {
+      if (pin.section !== undefined && !sectionIndexes.includes(pin.section)) {
+        context.addIssue({ code: "custom", path: ["pins", position, "section"], message: `pin ${pin.pin} names section ${pin.section}, which is not in sections` });
+      }
+    });
+
+    if (spec.variantOf === spec.designation) context.addIssue({ code: "custom", path: ["variantOf"], message: "variantOf must name another type" });
+
+    const heater = spec.heater;
+    if ((heater.volts === 0) !== (heater.amps === 0)) {
+      context.addIssue({ code: "custom", path: ["heater"], message: "heater volts and amps must both be zero (cold cathode) or both be positive" });
+    }
+  });
+
+/** A library file: an optional comment and its types. */
+export const tubeLibraryFileSchema = z.strictObject({
+  $comment: z.string({ error: "$comment must be text" }).optional(),
+  types: z.array(tubeTypeSpecSchema, { error: "types must be a list of tube types" }),
+});
+
+export type TubeLibraryFile = z.infer<typeof tubeLibraryFileSchema>;
+
+// ── The schema and the engine's shape must stay the same type, both ways ─────────────────
+
+type Same<A, B> = [A] extends [B] ? ([B] extends [A] ? true : false) : false;
+const sameTubeTypeSpec: Same<z.infer<typeof tubeTypeSpecSchema>, TubeTypeSpec> = true;
+const samePinAssignment: Same<z.infer<typeof pinAssignmentSchema>, PinAssignment> = true;
+const sameSectionSpec: Same<z.infer<typeof sectionSpecSchema>, SectionSpec> = true;
+const sameOperatingPoint: Same<z.infer<typeof operatingPointSchema>, OperatingPoint> = true;
+const sameHeaterSpec: Same<z.infer<typeof heaterSpecSchema>, HeaterSpec> = true;
+const sameMaxRatings: Same<z.infer<typeof maxRatingsSchema>, MaxRatings> = true;
+const sameEnumerations: [
+  Same<(typeof TUBE_CLASSES)[number], TubeClass>,
+  Same<(typeof BASE_FAMILIES)[number], BaseFamily>,
+  Same<(typeof PIN_ELEMENTS)[number], PinElement>,
+  Same<(typeof SECTION_KINDS)[number], SectionKind>,
+] = [true, true, true, true];
+void [sameTubeTypeSpec, samePinAssignment, sameSectionSpec, sameOperatingPoint, sameHeaterSpec, sameMaxRatings, sameEnumerations];
