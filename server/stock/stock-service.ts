@@ -62,13 +62,16 @@ export class StockService {
   }
 
   async locations(): Promise<string[]> {
-    const rows = await this.db.tube.findMany({ where: { location: { not: "" } }, distinct: ["location"], select: { location: true }, orderBy: { location: "asc" } });
+    // Prisma's `distinct` de-duplicates in memory; SQL answers from the location index.
+    const rows = await this.db.$queryRaw<Array<{ location: string }>>`SELECT DISTINCT location FROM Tube WHERE location <> '' ORDER BY location`;
     return rows.map((r) => r.location);
   }
 
   /** Per type: how many tubes are good, worn, failed, untested or not comparable (retired excluded). */
   async summary() {
-    const groups = await this.db.tube.groupBy({ by: ["typeId", "verdict"], where: { state: { not: "retired" } }, _count: { _all: true } });
+    const rows = await this.db.$queryRaw<Array<{ typeId: number; verdict: string; n: number | bigint }>>`
+      SELECT typeId, verdict, COUNT(*) AS n FROM Tube WHERE state <> 'retired' GROUP BY typeId, verdict`;
+    const groups = rows.map((row) => ({ typeId: Number(row.typeId), verdict: row.verdict, _count: { _all: Number(row.n) } }));
     const byType = new Map<number, { type: string; total: number; counts: Record<string, number> }>();
     for (const group of groups) {
       const designation = this.catalog.get(group.typeId)?.designation ?? `#${group.typeId}`;

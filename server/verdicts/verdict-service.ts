@@ -78,7 +78,6 @@ export function presentEvaluation(result: TubeResult) {
   };
 }
 
-type JoinedRow = StoredReading & StoredConditions & { tubeId: number; typeId: number; sessionId: number };
 
 export class VerdictService {
   constructor(
@@ -107,38 +106,43 @@ export class VerdictService {
   recomputeWith(thresholds: VerdictThresholds, tubeIds?: number[]): void {
     const all = !tubeIds || tubeIds.length > 400;
     if (tubeIds && tubeIds.length === 0) return;
-    const select =
-      `SELECT r.tubeId, t.typeId, r.sessionId, r.section, r.gmMicroSiemens, r.plateMilliamps, r.emissionValue, r.emissionPassMark,
-              r.emissionFullScale, r.gridMicroamps, r.leakageMicroamps, r.shorts, r.heaterOpen,
-              s.heaterVolts, s.plateVolts, s.screenVolts, s.gridVolts
-       FROM Reading r JOIN TestSession s ON s.id = r.sessionId JOIN Tube t ON t.id = r.tubeId ` +
-      (all ? "" : `WHERE r.tubeId IN (${tubeIds!.map(() => "?").join(",")}) `) +
-      "ORDER BY r.tubeId, s.date DESC, s.id DESC, r.section";
+    // Sessions are few: rank them newest first in memory, so the readings need no sorted join.
+    const sessions = this.sqlite
+      .prepare("SELECT id, heaterVolts, plateVolts, screenVolts, gridVolts FROM TestSession ORDER BY date DESC, id DESC")
+      .all() as Array<StoredConditions & { id: number }>;
+    const sessionRank = new Map(sessions.map((session, rank) => [session.id, rank]));
+    const sessionById = new Map(sessions.map((session) => [session.id, session]));
+    const where = all ? "" : `WHERE tubeId IN (${tubeIds!.map(() => "?").join(",")}) `;
+    const readings = this.sqlite
+      .prepare(
+        `SELECT tubeId, sessionId, section, gmMicroSiemens, plateMilliamps, emissionValue, emissionPassMark, emissionFullScale,
+                gridMicroamps, leakageMicroamps, shorts, heaterOpen FROM Reading ${where}ORDER BY tubeId`,
+      )
+      .all(...(all ? [] : tubeIds!)) as Array<StoredReading & { tubeId: number; sessionId: number }>;
+    const typeOfTube = new Map(
+      (this.sqlite.prepare(`SELECT id, typeId FROM Tube ${all ? "" : `WHERE id IN (${tubeIds!.map(() => "?").join(",")})`}`).all(...(all ? [] : tubeIds!)) as Array<{ id: number; typeId: number }>).map((row) => [row.id, row.typeId]),
+    );
+    const updates: Array<[string, number | null, number]> = [];
+    const judge = (group: Array<StoredReading & { tubeId: number; sessionId: number }>) => {
+      // Only the newest session of each tube counts.
+      let newest = group[0].sessionId;
+      for (const reading of group) if (sessionRank.get(reading.sessionId)! < sessionRank.get(newest)!) newest = reading.sessionId;
+      const spec = this.catalog.get(typeOfTube.get(group[0].tubeId)!)?.spec;
+      if (!spec) return;
+      const result = judgeTube(spec, sessionById.get(newest)!, group.filter((reading) => reading.sessionId === newest).sort((a, b) => a.section - b.section), thresholds);
+      updates.push([result.verdict, lowestPercent(result), group[0].tubeId]);
+    };
+    let start = 0;
+    for (let index = 1; index <= readings.length; index++) {
+      if (index === readings.length || readings[index].tubeId !== readings[start].tubeId) {
+        judge(readings.slice(start, index));
+        start = index;
+      }
+    }
     const update = this.sqlite.prepare("UPDATE Tube SET verdict = ?, percent = ? WHERE id = ?");
     const run = () => {
-      if (all) this.sqlite.prepare("UPDATE Tube SET verdict = 'untested', percent = NULL").run();
+      if (all) this.sqlite.prepare("UPDATE Tube SET verdict = 'untested', percent = NULL WHERE verdict <> 'untested' OR percent IS NOT NULL").run();
       else for (const id of tubeIds!) update.run("untested", null, id);
-      // better-sqlite3 cannot write while a statement is being iterated: collect, then update.
-      const updates: Array<[string, number | null, number]> = [];
-      let group: JoinedRow[] = [];
-      const flush = () => {
-        if (!group.length) return;
-        const first = group[0];
-        const spec = this.catalog.get(first.typeId)?.spec;
-        if (spec) {
-          const result = judgeTube(spec, first, group, thresholds);
-          updates.push([result.verdict, lowestPercent(result), first.tubeId]);
-        }
-        group = [];
-      };
-      const statement = this.sqlite.prepare(select);
-      for (const row of statement.iterate(...(all ? [] : tubeIds!)) as IterableIterator<JoinedRow>) {
-        if (group.length && row.tubeId !== group[0].tubeId) flush();
-        // Only the newest session of each tube counts; older rows of the same tube are skipped.
-        if (group.length && row.sessionId !== group[0].sessionId) continue;
-        group.push(row);
-      }
-      flush();
       for (const values of updates) update.run(...values);
     };
     if (this.sqlite.inTransaction) run();
