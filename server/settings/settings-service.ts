@@ -17,6 +17,11 @@ export class SettingsService {
     return this.cached;
   }
 
+  /** Drops the cached thresholds, e.g. after a restore replaced the Setting table underneath. */
+  forget(): void {
+    this.cached = null;
+  }
+
   /** Saves only the values that differ from the defaults, so improved defaults still reach the owner. */
   async saveThresholds(values: VerdictThresholds): Promise<void> {
     const changed: Partial<Record<keyof VerdictThresholds, number>> = {};
