@@ -11,6 +11,7 @@ import forms from "./plugins/external/forms.ts";
 import views from "./plugins/external/views.ts";
 import database from "./plugins/app/database.ts";
 import services from "./plugins/app/services.ts";
+import imports from "./imports/imports-plugin.ts";
 import routes from "./routes/index.ts";
 
 export interface BuildOptions {
@@ -31,6 +32,7 @@ export async function buildApp(options: BuildOptions) {
   // 2. app
   await app.register(database, { databaseUrl: config.databaseUrl });
   await app.register(services, { libraryDir: config.libraryDir });
+  await app.register(imports);
   // 3. routes
   await app.register(routes);
 

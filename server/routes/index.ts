@@ -9,6 +9,10 @@ import loginPages from "./pages/login.ts";
 import tubeApi from "./api/tubes.ts";
 import sessionApi from "./api/sessions.ts";
 import openApi from "./api/openapi.ts";
+import importPages from "./pages/import.ts";
+import importApi from "./api/import.ts";
+import exportPages from "./pages/export.ts";
+import exportApi from "./api/export.ts";
 
 export default async function routes(app: FastifyInstance) {
   await app.register(homePages);
@@ -19,5 +23,9 @@ export default async function routes(app: FastifyInstance) {
   await app.register(loginPages);
   await app.register(tubeApi, { prefix: "/api" });
   await app.register(sessionApi, { prefix: "/api" });
+  await app.register(exportPages);
+  await app.register(exportApi, { prefix: "/api" });
+  await app.register(importPages);
+  await app.register(importApi, { prefix: "/api" });
   await app.register(openApi, { prefix: "/api" });
 }
