@@ -97,14 +97,16 @@ function medianMilliseconds(socket: SocketDescription, library: readonly TubeTyp
   return times[Math.floor(times.length / 2)];
 }
 
-async function loadReferenceLibrary(): Promise<{ types: TubeTypeSpec[] } | { problem: string } | null> {
+async function loadReferenceLibrary(): Promise<{ types: TubeTypeSpec[]; loadMilliseconds: number } | { problem: string } | null> {
   const loaderPath = fileURLToPath(new URL("../../server/library/load-library.ts", import.meta.url));
   const directory = fileURLToPath(new URL("../../data/tube-types", import.meta.url));
   if (!existsSync(loaderPath) || !existsSync(directory) || !readdirSync(directory).some((name) => name.endsWith(".json"))) return null;
   try {
     const loader = (await import(pathToFileURL(loaderPath).href)) as { loadTubeLibrary: (dir: string) => { types: TubeTypeSpec[] } | Promise<{ types: TubeTypeSpec[] }> };
+    // Reading and validating every file (zod schema plus the library-wide checks), as the server does at start.
+    const start = performance.now();
     const library = await loader.loadTubeLibrary(directory);
-    return { types: library.types };
+    return { types: library.types, loadMilliseconds: performance.now() - start };
   } catch (error) {
     return { problem: (error as Error).message.split("\n")[0] };
   }
@@ -127,6 +129,7 @@ export async function runSubstitutionBench(): Promise<string[]> {
   if (reference === null) lines.push("reference library: data/tube-types not present, skipped");
   else if ("problem" in reference) lines.push(`reference library: did not load (${reference.problem}), skipped`);
   else {
+    lines.push(`library load ${reference.loadMilliseconds.toFixed(1)} ms (${reference.types.length} types from data/tube-types: read, zod schema, consistency checks)`);
     const referenceMedian = medianMilliseconds(socket, reference.types);
     lines.push(`substitute ranking median ${referenceMedian.toFixed(2)} ms over ${reference.types.length} types (goal ≤ ${GOAL_MILLISECONDS} ms) [data/tube-types, ${TIMED_RUNS} runs]`);
   }

@@ -21,7 +21,10 @@ export interface ApiOperation {
 }
 
 const errorSchema = z.object({ error: z.string(), message: z.string(), fields: z.record(z.string(), z.string()).optional() });
-const idPath = (name: string) => ({ name, in: "path", required: true, schema: { type: "integer", minimum: 1 } });
+/** Numeric ids are integers; other path parameters (a type designation) are strings. */
+const pathParameter = (name: string) => ({
+  name, in: "path", required: true, schema: name === "id" ? { type: "integer", minimum: 1 } : { type: "string", minLength: 1 },
+});
 
 const coreOperations: ApiOperation[] = [
   { method: "get", path: "/api/tubes", summary: "List tubes with filters and pagination", tag: "stock", query: tubeListQuerySchema, response: z.object({ total: z.number(), page: z.number(), pages: z.number(), tubes: z.array(tubeSchema) }) },
@@ -43,7 +46,7 @@ export function buildOpenApiDocument(operations: ApiOperation[]) {
   const paths: Record<string, Record<string, unknown>> = {};
   for (const op of operations) {
     const parameters: unknown[] = [];
-    for (const match of op.path.matchAll(/\{(\w+)\}/g)) parameters.push(idPath(match[1]));
+    for (const match of op.path.matchAll(/\{(\w+)\}/g)) parameters.push(pathParameter(match[1]));
     if (op.query) {
       const schema = jsonSchema(op.query) as { properties?: Record<string, unknown>; required?: string[] };
       for (const [name, property] of Object.entries(schema.properties ?? {})) parameters.push({ name, in: "query", required: schema.required?.includes(name) ?? false, schema: property });
