@@ -34,12 +34,16 @@ export type ColumnKind =
   | { kind: "reference"; table: BackupTableName }
   | { kind: "integer"; min: number }
   | { kind: "number?" }
+  | { kind: "number" }
   | { kind: "text"; oneOf?: readonly string[]; pattern?: RegExp; patternHint?: string }
   | { kind: "boolean" }
   | { kind: "timestamp" }
+  | { kind: "timestamp?" }
   | { kind: "json"; schema?: z.ZodType };
 
-export type BackupTableName = "TubeType" | "Tube" | "TubeEvent" | "TestSession" | "Reading" | "ImportMapping" | "ImportBatch" | "Setting";
+export type BackupTableName =
+  | "TubeType" | "Tube" | "TubeEvent" | "TestSession" | "Reading" | "ImportMapping" | "ImportBatch" | "Setting"
+  | "Build" | "BuildLine" | "BuildAllocation";
 
 export interface TableLayout {
   name: BackupTableName;
@@ -53,7 +57,9 @@ export interface TableLayout {
 const id = { kind: "id" } as const;
 const text = { kind: "text" } as const;
 const optionalNumber = { kind: "number?" } as const;
+const number = { kind: "number" } as const;
 const timestamp = { kind: "timestamp" } as const;
+const optionalTimestamp = { kind: "timestamp?" } as const;
 const bool = { kind: "boolean" } as const;
 const reference = (table: BackupTableName) => ({ kind: "reference", table }) as const;
 
@@ -126,6 +132,37 @@ export const BACKUP_TABLES: readonly TableLayout[] = [
     unique: [],
     columns: [["key", { kind: "text", pattern: /^.+$/, patternHint: "a non-empty key" }], ["value", { kind: "json" }]],
   },
+  {
+    name: "Build",
+    key: "id",
+    unique: [["name"]],
+    columns: [
+      ["id", id], ["name", text], ["notes", text], ["heaterSupplies", { kind: "json" }], ["bPlusVolts", number],
+      ["bPlusMilliamps", number], ["negativeRailVolts", optionalNumber], ["negativeRailMilliamps", optionalNumber],
+      ["balancePercent", number], ["createdAt", timestamp], ["updatedAt", timestamp],
+    ],
+  },
+  {
+    name: "BuildLine",
+    key: "id",
+    unique: [],
+    columns: [
+      ["id", id], ["buildId", reference("Build")], ["position", { kind: "integer", min: 0 }], ["kind", text], ["typeId", reference("TubeType")],
+      ["count", { kind: "integer", min: 0 }], ["heaterSupply", { kind: "integer", min: 0 }], ["sparesPercent", number], ["sparesSource", text],
+      ["allowSubstitutes", bool], ["acceptedSubstitutes", text], ["plateLoadOhms", optionalNumber], ["couplingOhms", optionalNumber],
+      ["gridReturnOhms", optionalNumber], ["cathodeOhms", optionalNumber], ["plateVolts", optionalNumber], ["plateMilliamps", optionalNumber],
+      ["screenMilliamps", optionalNumber], ["loadMilliamps", optionalNumber],
+    ],
+  },
+  {
+    name: "BuildAllocation",
+    key: "id",
+    unique: [["tubeId"]],
+    columns: [
+      ["id", id], ["buildId", reference("Build")], ["lineId", reference("BuildLine")], ["tubeId", reference("Tube")], ["slots", text],
+      ["status", text], ["position", text], ["createdAt", timestamp], ["installedAt", optionalTimestamp],
+    ],
+  },
 ];
 
 export type BackupValue = string | number | boolean | null;
@@ -166,10 +203,14 @@ function valueSchema(column: string, kind: ColumnKind): z.ZodType {
       return z.number({ error: `${column} must be a whole number` }).int(`${column} must be a whole number`).min(kind.min, `${column} must be at least ${kind.min}`);
     case "number?":
       return z.number({ error: `${column} must be a number or null` }).nullable();
+    case "number":
+      return z.number({ error: `${column} must be a number` });
     case "boolean":
       return z.boolean({ error: `${column} must be true or false` });
     case "timestamp":
       return z.string({ error: `${column} must be a timestamp` }).regex(TIMESTAMP_PATTERN, `${column} must be a timestamp like 2026-05-01T14:22:33.000+00:00`);
+    case "timestamp?":
+      return z.string({ error: `${column} must be a timestamp or null` }).regex(TIMESTAMP_PATTERN, `${column} must be a timestamp like 2026-05-01T14:22:33.000+00:00`).nullable();
     case "text": {
       let schema: z.ZodType<string> = z.string({ error: `${column} must be text` });
       if (kind.oneOf) schema = z.enum(kind.oneOf as [string, ...string[]], { error: `${column} must be one of ${kind.oneOf.join(", ")}` });

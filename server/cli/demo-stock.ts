@@ -60,7 +60,8 @@ export function buildDemoStock(seed: number) {
     const shorted = random() < 0.015;
     const gassy = random() < 0.02;
     return {
-      label, section, gmMicroSiemens: Math.round(reference * fraction), plateMilliamps: Math.round(referenceMilliamps * fraction * 100) / 100,
+      label, section, gmMicroSiemens: Math.round(reference * fraction), // Plate current follows gm only loosely, as on a real tester, so matching on both values is a real choice.
+      plateMilliamps: Math.round(referenceMilliamps * fraction * (1 + 0.04 * normal()) * 100) / 100,
       emissionValue: null, emissionPassMark: null, emissionFullScale: null,
       gridMicroamps: gassy ? 2.5 : Math.round(random() * 30) / 100, shorts: shorted ? "g1-k" : "", heaterOpen: false,
       noise: random() < 0.03 ? "microphonic when tapped" : "",
@@ -98,3 +99,24 @@ export function buildDemoStock(seed: number) {
   ];
   return { tubes, sessions };
 }
+
+/**
+ * An invented build for the demo: a 24-stage shift register in 5963 bistable stages — more good
+ * 5963 pairs than the demo stock holds, so its check shows a shortfall and offers the 12AU7 —
+ * with lamp-driver pentodes and the rectifiers of its own supply. Every value here is invented.
+ */
+export const demoBuild = {
+  name: "Demo: 24-stage shift register",
+  notes: "Invented demo plan: one bistable stage per bit, 6AU6 lamp drivers, two 5Y3GT for its B+.",
+  heaterSupplies: [
+    { name: "6.3 V heater bus", volts: 6.3, amps: 12 },
+    { name: "5 V rectifier winding", volts: 5, amps: 6 },
+  ],
+  bPlus: { volts: 250, milliamps: 600 },
+  negativeRail: { volts: -150, milliamps: 60 },
+  lines: [
+    { kind: "bistable" as const, type: "5963", count: 24, heaterSupply: 1, allowSubstitutes: true, plateLoadOhms: 27_000, couplingOhms: 220_000, gridReturnOhms: 220_000 },
+    { kind: "single" as const, type: "6AU6", count: 8, heaterSupply: 1, plateVolts: 250, plateMilliamps: 10.6, screenMilliamps: 4.3 },
+    { kind: "rectifier" as const, type: "5Y3GT", count: 2, heaterSupply: 2, sparesPercent: 50, sparesSource: "demo: one spare rectifier per two" },
+  ],
+};

@@ -4,7 +4,9 @@
  */
 import { buildApp } from "../app.ts";
 import { configFromEnvironment } from "../config.ts";
-import { buildDemoStock } from "./demo-stock.ts";
+import { buildDemoStock, demoBuild } from "./demo-stock.ts";
+import { BuildService } from "../builds/build-service.ts";
+import { buildInputSchema } from "../schemas/build-schemas.ts";
 import { sqlTimestamp } from "../db/sql-time.ts";
 
 const config = configFromEnvironment();
@@ -48,6 +50,11 @@ try {
     await app.verdicts.recompute();
     const readings = demo.sessions.reduce((sum, s) => sum + s.readings.length, 0);
     console.log(`Loaded the invented demo stock: ${demo.tubes.length} tubes, ${demo.sessions.length} sessions, ${readings} readings.`);
+  }
+  const builds = new BuildService(app.db, app.sqlite, app.catalog);
+  if (!builds.list().some((build) => build.name === demoBuild.name)) {
+    const created = await builds.create(buildInputSchema.parse(demoBuild));
+    console.log(created.ok ? `Added the invented demo build "${demoBuild.name}" (see /builds/${created.value.id}).` : `Demo build not added: ${Object.values(created.errors).join("; ")}`);
   }
 } finally {
   await app.close();

@@ -13,6 +13,15 @@ import importPages from "./pages/import.ts";
 import importApi from "./api/import.ts";
 import exportPages from "./pages/export.ts";
 import exportApi from "./api/export.ts";
+import substitutePages from "./pages/substitutes.ts";
+import substituteApi from "./api/substitutes.ts";
+import typeApi from "./api/types.ts";
+import bistablePages from "./pages/bistable.ts";
+import bistableApi from "./api/bistable.ts";
+import pairingPages from "./pages/pairing.ts";
+import pairingApi from "./api/pairing.ts";
+import buildPages from "./pages/builds.ts";
+import buildApi from "./api/builds.ts";
 
 export default async function routes(app: FastifyInstance) {
   await app.register(homePages);
@@ -27,5 +36,14 @@ export default async function routes(app: FastifyInstance) {
   await app.register(exportApi, { prefix: "/api" });
   await app.register(importPages);
   await app.register(importApi, { prefix: "/api" });
+  await app.register(substitutePages);
+  await app.register(substituteApi, { prefix: "/api" });
+  await app.register(typeApi, { prefix: "/api" });
+  await app.register(bistablePages);
+  await app.register(bistableApi, { prefix: "/api" });
+  await app.register(pairingPages);
+  await app.register(pairingApi, { prefix: "/api" });
+  await app.register(buildPages);
+  await app.register(buildApi, { prefix: "/api" });
   await app.register(openApi, { prefix: "/api" });
 }

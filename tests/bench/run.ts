@@ -10,6 +10,8 @@ const benches: Array<[file: string, exportName: string]> = [
   ["substitution.ts", "runSubstitutionBench"],
   ["bistable.ts", "runBistableBench"],
   ["pairing.ts", "runPairingBench"],
+  ["pairing-demo.ts", "runPairingDemoBench"],
+  ["builds.ts", "runBuildsBench"],
 ];
 
 console.log(`Tubeledger benchmarks — node ${process.version}, ${new Date().toISOString().slice(0, 10)}`);

@@ -52,6 +52,17 @@ async function seedLedger(app: App) {
   await api(app, "POST", rows(bare.id), { label: "T-005", s1Gm: "2150", s2Gm: "2180" });
   await api(app, "POST", rows(bare.id), { label: "T-006", type: "12AU7", createTube: "1", location: "Bench", s2Leakage: "3" });
 
+  // A build plan with one line; its allocations are written directly (one installed, one only reserved).
+  const build = await api(app, "POST", "/api/builds", {
+    name: "Counter, 4 bits", heaterSupplies: [{ name: "6.3 V bus", volts: 6.3, amps: 5 }], bPlus: { volts: 250, milliamps: 120 },
+    negativeRail: { volts: -150, milliamps: 20 },
+    lines: [{ kind: "bistable", type: "12AU7", count: 4, heaterSupply: 1, sparesPercent: 10, plateLoadOhms: 27_000, couplingOhms: 220_000, gridReturnOhms: 220_000 }],
+  });
+  const lineId = (app.sqlite.prepare("SELECT id FROM BuildLine WHERE buildId = ?").get(build.id) as { id: number }).id;
+  const insertAllocation = app.sqlite.prepare("INSERT INTO BuildAllocation (buildId, lineId, tubeId, slots, status, position, createdAt, installedAt) VALUES (?, ?, ?, ?, ?, ?, ?, ?)");
+  insertAllocation.run(build.id, lineId, first.id, "1A,1B", "installed", "stage 1", "2026-04-20T10:00:00.000+00:00", "2026-04-21T09:30:00.000+00:00");
+  insertAllocation.run(build.id, lineId, (app.sqlite.prepare("SELECT id FROM Tube WHERE label = 'T-006'").get() as { id: number }).id, "2A", "reserved", "", "2026-04-20T10:00:00.000+00:00", null);
+
   // The importer's own service belongs to another part of the app; its two tables are written directly here.
   app.sqlite.prepare("INSERT INTO ImportMapping (instrument, mapping) VALUES (?, ?)").run("Bench tester A", JSON.stringify({ label: "Tube", gm: "Gm (umho)" }));
   app.sqlite
