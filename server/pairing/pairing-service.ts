@@ -181,7 +181,7 @@ export class PairingService {
           else if (tube.verdict !== "good") problems.push(`${tube.label} is no longer good (its verdict is ${tube.verdict})`);
         }
         if (problems.length > 0) throw new Refusal({ tubeIds: `Nothing was reserved: ${problems.join("; ")}` }, byId.size < tubeIds.length ? 404 : 409);
-        const stock = new StockService(clientWithin(transaction), this.catalog);
+        const stock = new StockService(clientWithin(transaction), this.catalog, this.sqlite);
         const rows: TubeRow[] = [];
         for (const id of tubeIds) {
           const result = await stock.update(id, { state: "reserved", note });

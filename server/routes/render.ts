@@ -15,9 +15,8 @@ export async function render(
 ) {
   reply.header("Vary", "HX-Request");
   reply.type("text/html; charset=utf-8");
-  const csrfToken = reply.generateCsrf();
   const template = fragment && isHtmx(request) ? fragment : page;
-  return reply.view(template, { ...data, csrfToken });
+  return reply.view(template, { ...data, csrfToken: reply.generateCsrf() });
 }
 
 /** Post/Redirect/Get for plain forms; htmx follows `HX-Location` instead. */

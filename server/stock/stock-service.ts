@@ -1,4 +1,5 @@
 /** Stock: create, edit, move, change state, list with filters, and the per-type summary. */
+import type Database from "better-sqlite3";
 import type { PrismaClient } from "../../generated/prisma/client.ts";
 import type { TypeCatalog } from "../types/type-catalog.ts";
 import type { TubeInput, TubeListQuery } from "../schemas/tube-schemas.ts";
@@ -34,36 +35,77 @@ export function toTubeRow(tube: TubeWithType): TubeRow {
 }
 
 export class StockService {
-  constructor(private readonly db: PrismaClient, private readonly catalog: TypeCatalog) {}
+  /** Prepared statements by SQL text: the list builds a handful of filter shapes, each prepared once. */
+  private readonly statements = new Map<string, Database.Statement>();
 
-  async list(query: TubeListQuery) {
-    const where: Record<string, unknown> = {};
-    if (query.type) {
-      const entry = this.catalog.resolve(query.type);
-      where.typeId = entry ? entry.id : -1;
+  private statement(sql: string): Database.Statement {
+    let statement = this.statements.get(sql);
+    if (!statement) {
+      statement = this.sqlite.prepare(sql);
+      this.statements.set(sql, statement);
     }
-    if (query.state === "active") where.state = { not: "retired" };
-    else if (query.state) where.state = query.state;
-    if (query.location) where.location = query.location;
-    if (query.verdict) where.verdict = query.verdict;
-    if (query.q) where.label = { contains: query.q };
-    const [total, tubes] = await Promise.all([
-      this.db.tube.count({ where }),
-      this.db.tube.findMany({
-        where,
-        include: { type: { select: { designation: true } } },
-        orderBy: { label: "asc" },
-        skip: (query.page - 1) * query.pageSize,
-        take: query.pageSize,
-      }),
-    ]);
-    const pages = Math.max(1, Math.ceil(total / query.pageSize));
-    return { total, page: query.page, pages, pageSize: query.pageSize, tubes: tubes.map(toTubeRow) };
+    return statement;
   }
 
+  constructor(
+    private readonly db: PrismaClient,
+    private readonly catalog: TypeCatalog,
+    private readonly sqlite: Database.Database,
+  ) {}
+
+  /**
+   * One page of the stock list and the number of matches. The stock page is the hottest path
+   * (20,000 tubes, many clients), so it is plain SQL on the raw connection, and the filters
+   * map onto the Tube indexes.
+   */
+  async list(query: TubeListQuery) {
+    const conditions: string[] = [];
+    const values: Array<string | number> = [];
+    if (query.type) {
+      conditions.push("t.typeId = ?");
+      values.push(this.catalog.resolve(query.type)?.id ?? -1);
+    }
+    if (query.state === "active") conditions.push("t.state <> 'retired'");
+    else if (query.state) {
+      conditions.push("t.state = ?");
+      values.push(query.state);
+    }
+    if (query.location) {
+      conditions.push("t.location = ?");
+      values.push(query.location);
+    }
+    if (query.verdict) {
+      conditions.push("t.verdict = ?");
+      values.push(query.verdict);
+    }
+    if (query.q) {
+      conditions.push("t.label LIKE ? ESCAPE '\\'");
+      values.push(`%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`);
+    }
+    const where = conditions.length ? `WHERE ${conditions.join(" AND ")}` : "";
+    // Two statements: a window-function total would materialise every match before the LIMIT.
+    const total = (this.statement(`SELECT COUNT(*) AS n FROM Tube t ${where}`).get(...values) as { n: number }).n;
+    const rows = this
+      .statement(
+        `SELECT t.id, t.label, t.maker, t.dateCode, t.location, t.state, t.notes, t.verdict, t.percent, tt.designation
+         FROM Tube t JOIN TubeType tt ON tt.id = t.typeId ${where} ORDER BY t.label LIMIT ? OFFSET ?`,
+      )
+      .all(...values, query.pageSize, (query.page - 1) * query.pageSize) as Array<Omit<TubeWithType, "type"> & { designation: string }>;
+    const pages = Math.max(1, Math.ceil(total / query.pageSize));
+    return { total, page: query.page, pages, pageSize: query.pageSize, tubes: rows.map((row) => toTubeRow({ ...row, type: { designation: row.designation } })) };
+  }
+
+
   async locations(): Promise<string[]> {
-    // Prisma's `distinct` de-duplicates in memory; SQL answers from the location index.
-    const rows = await this.db.$queryRaw<Array<{ location: string }>>`SELECT DISTINCT location FROM Tube WHERE location <> '' ORDER BY location`;
+    // Hop from one distinct location to the next through the index instead of reading every tube.
+    const rows = this
+      .statement(
+        `WITH RECURSIVE next(location) AS (
+           SELECT MIN(location) FROM Tube WHERE location > ''
+           UNION ALL SELECT (SELECT MIN(location) FROM Tube WHERE location > next.location) FROM next WHERE next.location IS NOT NULL)
+         SELECT location FROM next WHERE location IS NOT NULL`,
+      )
+      .all() as Array<{ location: string }>;
     return rows.map((r) => r.location);
   }
 

@@ -16,6 +16,8 @@ export interface CatalogEntry {
 export class TypeCatalog {
   private byId = new Map<number, CatalogEntry>();
   private byName = new Map<string, CatalogEntry>();
+  /** Sorted once per reload: numeric-aware collation is slow enough to matter on every page. */
+  private sorted: CatalogEntry[] = [];
 
   constructor(private readonly sqlite: Database.Database) {}
 
@@ -50,6 +52,8 @@ export class TypeCatalog {
       this.byId.set(entry.id, entry);
       this.byName.set(entry.designation.toUpperCase(), entry);
     }
+    const collator = new Intl.Collator("en", { numeric: true });
+    this.sorted = [...this.byId.values()].sort((a, b) => collator.compare(a.designation, b.designation));
     // Aliases second so that a designation always wins over another type's alias.
     for (const entry of this.byId.values()) {
       for (const alias of entry.spec.aliases) {
@@ -68,8 +72,8 @@ export class TypeCatalog {
     return this.byId.get(id);
   }
 
-  list(): CatalogEntry[] {
-    return [...this.byId.values()].sort((a, b) => a.designation.localeCompare(b.designation, "en", { numeric: true }));
+  list(): readonly CatalogEntry[] {
+    return this.sorted;
   }
 
   /** Inserts a user-added type; throws when the name clashes with a known designation or alias. */

@@ -80,6 +80,9 @@ describe("stock pages", () => {
     expect(page.statusCode).toBe(200);
     expect(page.body.startsWith('<div id="tube-table">')).toBe(true);
     expect(page.headers.vary).toContain("HX-Request");
+    // % and _ in a search are literal characters, not SQL wildcards.
+    expect((await t.app.inject({ url: "/api/tubes?q=F-0_1" })).json().total).toBe(0);
+    expect((await t.app.inject({ url: "/api/tubes?q=f-05" })).json().total).toBe(10); // F-050 … F-059, any case
     const badQuery = await t.app.inject({ url: "/api/tubes?verdict=shiny" });
     expect(badQuery.statusCode).toBe(400);
     expect(badQuery.json().fields.verdict).toBeDefined();

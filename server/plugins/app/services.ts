@@ -20,7 +20,7 @@ export default fp(
     app.decorate("catalog", catalog);
     app.decorate("settings", settings);
     app.decorate("verdicts", verdicts);
-    app.decorate("stock", new StockService(app.db, catalog));
+    app.decorate("stock", new StockService(app.db, catalog, app.sqlite));
     app.decorate("sessions", new SessionService(app.db, catalog, verdicts));
   },
   { name: "services", dependencies: ["database"] },

@@ -11,8 +11,10 @@ const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "../../.
 
 export default fp(
   async (app) => {
-    const eta = new Eta({ views: path.join(root, "views"), autoEscape: true, cache: process.env.NODE_ENV !== "development" });
-    await app.register(view, { engine: { eta }, templates: path.join(root, "views"), viewExt: "eta", layout: undefined });
+    // Compiled templates are cached unless NODE_ENV=development (then edits show without a restart).
+    const cacheTemplates = process.env.NODE_ENV !== "development";
+    const eta = new Eta({ views: path.join(root, "views"), autoEscape: true, cache: cacheTemplates });
+    await app.register(view, { engine: { eta }, templates: path.join(root, "views"), viewExt: "eta", layout: undefined, production: cacheTemplates });
     await app.register(staticFiles, { root: path.join(root, "views", "static"), prefix: "/static/", decorateReply: false });
     const require = createRequire(import.meta.url);
     const htmxDir = path.dirname(require.resolve("htmx.org/dist/htmx.min.js"));
