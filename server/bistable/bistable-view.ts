@@ -6,7 +6,7 @@ import { scaleLinear } from "d3-scale";
 import type { BistableAnalysis, BistableState, SideOperatingPoint, WorstFigures, YieldResult } from "../engine/bistable/index.ts";
 import { formatQuantity } from "../engine/units/index.ts";
 import type { BistableAnswer, ResistorAnswer } from "./bistable-service.ts";
-import { transferCurves } from "./transfer-curves.ts";
+import { transferCurves } from "../engine/bistable/index.ts";
 
 // ── Numbers ───────────────────────────────────────────────────────────────────────────────
 

@@ -10,7 +10,7 @@ import { describe, it, expect, beforeAll, afterAll } from "vitest";
 import { makeTestApp } from "../helpers/app.ts";
 import { analyzeBistable } from "../../server/engine/bistable/index.ts";
 import { tubeElementFromModel, tubeModelLibrary } from "../../server/engine/models/index.ts";
-import { transferCurves } from "../../server/bistable/transfer-curves.ts";
+import { transferCurves } from "../../server/engine/bistable/index.ts";
 
 type App = Awaited<ReturnType<typeof makeTestApp>>["app"];
 

@@ -130,3 +130,4 @@ export function suggestResistors(
 ): ResistorSearchResult {
   return suggestResistorsImpl(tubes, supplies, targets, series, options);
 }
+export { transferCurves } from "./transfer-curves.ts";

@@ -10,10 +10,10 @@
  * crossing of a cell edge solved exactly. Contours, unlike a function of one grid, also follow a
  * curve that folds back (a shared cathode resistor can make one half latch on its own).
  *
- * Pure (no IO, no clock); written to the engine's rules: named tolerances, iteration caps, and
- * a point that cannot be solved is reported, never invented.
+ * Named tolerances and iteration caps; a point that cannot be solved is reported, never invented.
  */
-import type { BistableCircuit, BistableSide, CathodeCircuit } from "../engine/bistable/index.ts";
+import type { BistableCircuit, BistableSide, CathodeCircuit } from "./types.ts";
+import { brentRoot, SolverError } from "./root-finding.ts";
 
 /** Node voltages are solved to this. */
 const ROOT_TOLERANCE_VOLTS = 1e-6;
@@ -22,79 +22,6 @@ const ROOT_ITERATION_CAP = 200;
 /** Cells per axis of the grid the contours are traced on; each crossing is then solved exactly. */
 const GRID_CELLS = 40;
 
-/** Machine epsilon, for Brent's tolerance near large values. */
-const DOUBLE_EPSILON = 2.220446049250313e-16;
-
-/**
- * Root of f on [low, high] by Brent's method (inverse quadratic interpolation, secant and
- * bisection); f(low) and f(high) must differ in sign (or one be 0). Returns null when the
- * iteration cap is hit or the ends have one sign.
- */
-function brentRoot(f: (x: number) => number, low: number, high: number, atLow: number, atHigh: number): number | null {
-  let a = low;
-  let b = high;
-  let fa = atLow;
-  let fb = atHigh;
-  if (fa === 0) return a;
-  if (fb === 0) return b;
-  if (Math.sign(fa) === Math.sign(fb)) return null;
-  let c = a;
-  let fc = fa;
-  let d = b - a;
-  let e = d;
-  for (let iteration = 0; iteration < ROOT_ITERATION_CAP; iteration++) {
-    if (Math.sign(fb) === Math.sign(fc)) {
-      c = a;
-      fc = fa;
-      d = b - a;
-      e = d;
-    }
-    if (Math.abs(fc) < Math.abs(fb)) {
-      a = b;
-      b = c;
-      c = a;
-      fa = fb;
-      fb = fc;
-      fc = fa;
-    }
-    const tolerance = 2 * DOUBLE_EPSILON * Math.abs(b) + 0.5 * ROOT_TOLERANCE_VOLTS;
-    const half = 0.5 * (c - b);
-    if (Math.abs(half) <= tolerance || fb === 0) return b;
-    if (Math.abs(e) >= tolerance && Math.abs(fa) > Math.abs(fb)) {
-      const s = fb / fa;
-      let p: number;
-      let q: number;
-      if (a === c) {
-        p = 2 * half * s;
-        q = 1 - s;
-      } else {
-        const qa = fa / fc;
-        const r = fb / fc;
-        p = s * (2 * half * qa * (qa - r) - (b - a) * (r - 1));
-        q = (qa - 1) * (r - 1) * (s - 1);
-      }
-      if (p > 0) q = -q;
-      else p = -p;
-      if (2 * p < Math.min(3 * half * q - Math.abs(tolerance * q), Math.abs(e * q))) {
-        e = d;
-        d = p / q;
-      } else {
-        d = half;
-        e = d;
-      }
-    } else {
-      d = half;
-      e = d;
-    }
-    a = b;
-    fa = fb;
-    b += Math.abs(d) > tolerance ? d : half > 0 ? tolerance : -tolerance;
-    fb = f(b);
-  }
-  return null;
-}
-
-class Unsolved extends Error {}
 
 /**
  * Root inside a bracket the circuit guarantees. Both ends with one sign can then only come from
@@ -104,9 +31,7 @@ function rootOrThrow(f: (x: number) => number, low: number, high: number): numbe
   const atLow = f(low);
   const atHigh = f(high);
   if (Math.sign(atLow) === Math.sign(atHigh)) return Math.abs(atLow) <= Math.abs(atHigh) ? low : high;
-  const root = brentRoot(f, low, high, atLow, atHigh);
-  if (root === null) throw new Unsolved("root search hit its iteration cap");
-  return root;
+  return brentRoot(f, low, high, atLow, atHigh, ROOT_TOLERANCE_VOLTS, ROOT_ITERATION_CAP, "transfer curve");
 }
 
 interface SideSolution {
@@ -217,10 +142,10 @@ function contour(
       : (y: number) => gridResiduals(circuit, volts[i], y)[field];
     let point: { gridAVolts: number; gridBVolts: number } | null = null;
     try {
-      const root = brentRoot(f, horizontal ? volts[i] : volts[j], horizontal ? volts[i + 1] : volts[j + 1], startValue, endValue);
-      if (root !== null) point = horizontal ? { gridAVolts: root, gridBVolts: volts[j] } : { gridAVolts: volts[i], gridBVolts: root };
+      const root = brentRoot(f, horizontal ? volts[i] : volts[j], horizontal ? volts[i + 1] : volts[j + 1], startValue, endValue, ROOT_TOLERANCE_VOLTS, ROOT_ITERATION_CAP, "transfer curve");
+      point = horizontal ? { gridAVolts: root, gridBVolts: volts[j] } : { gridAVolts: volts[i], gridBVolts: root };
     } catch (error) {
-      if (!(error instanceof Unsolved)) throw error;
+      if (!(error instanceof SolverError)) throw error;
     }
     if (point === null) unsolvedCrossings++;
     crossings.set(key, point);
@@ -320,7 +245,7 @@ export function transferCurves(circuit: BistableCircuit, lowVolts: number, highV
         atGridA[i * n + j] = residuals.atGridA;
         atGridB[i * n + j] = residuals.atGridB;
       } catch (error) {
-        if (!(error instanceof Unsolved)) throw error;
+        if (!(error instanceof SolverError)) throw error;
         atGridA[i * n + j] = Number.NaN;
         atGridB[i * n + j] = Number.NaN;
         unsolvedPoints++;
