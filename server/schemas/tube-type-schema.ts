@@ -20,6 +20,7 @@ import type {
   TubeClass,
   TubeTypeSpec,
 } from "../engine/tube-types/index.ts";
+import { PIN_ELEMENT_NAMES } from "../engine/tube-types/index.ts";
 
 // ── Enumerations (also used to build forms) ────────────────────────────────────────────────
 
@@ -74,23 +75,8 @@ export const SECTION_KINDS = [
 /** Elements that belong to one section; the others (heater, filament, shield, IC, NC) belong to the envelope. */
 export const SECTION_ELEMENTS: readonly PinElement[] = ["a", "g1", "g2", "g3", "k", "bp", "ts"];
 
-/** Plain-English names of the elements, for forms and messages. */
-export const PIN_ELEMENT_NAMES: Record<PinElement, string> = {
-  a: "plate",
-  g1: "control grid",
-  g2: "screen grid",
-  g3: "suppressor grid",
-  k: "cathode",
-  bp: "beam plates",
-  h: "heater",
-  hct: "heater centre tap",
-  f: "filament",
-  fct: "filament centre tap",
-  s: "internal shield",
-  ts: "target",
-  ic: "internal connection",
-  nc: "no connection",
-};
+/** Plain-English names of the elements, for forms and messages (defined with the engine's shape). */
+export { PIN_ELEMENT_NAMES };
 
 // ── Field forms ────────────────────────────────────────────────────────────────────────────
 

@@ -8,7 +8,7 @@
  * evenly spaced pins around a keyed spigot; pin 1 is the first pin clockwise after the key.
  * Wire-ended subminiature types have no base: their leads are drawn as a row.
  */
-import type { BaseFamily, PinAssignment, PinElement, TubeTypeSpec } from "../engine/tube-types/index.ts";
+import { PIN_ELEMENT_NAMES, type BaseFamily, type PinAssignment, type PinElement, type TubeTypeSpec } from "../engine/tube-types/index.ts";
 
 export type PinRole = "electrode" | "heater" | "shield" | "ic" | "nc";
 
@@ -61,22 +61,8 @@ export interface PinDiagram {
   caption: string;
 }
 
-const ELEMENT_NAMES: Record<PinElement, string> = {
-  a: "plate",
-  g1: "control grid",
-  g2: "screen grid",
-  g3: "suppressor grid",
-  k: "cathode",
-  bp: "beam plates",
-  h: "heater",
-  hct: "heater centre tap",
-  f: "filament",
-  fct: "filament centre tap",
-  s: "internal shield",
-  ts: "target",
-  ic: "internal connection (do not wire)",
-  nc: "no connection",
-};
+/** The diagram's hover text warns about internal connections. */
+const ELEMENT_NAMES: Readonly<Record<PinElement, string>> = { ...PIN_ELEMENT_NAMES, ic: "internal connection (do not wire)" };
 
 /**
  * Pin positions around each base family: how many positions the circle has, how many pins,

@@ -31,6 +31,7 @@ import type { AdmissibleGraph } from "./admissible-pairs.ts";
 import { solveMinimumCostMaximumMatching } from "./exact-matching.ts";
 import {
   checkMaxPairs,
+  emptyStats,
   comparePairsByBalance,
   formatLimit,
   formatPercent,
@@ -103,19 +104,7 @@ export function pairSections(
   const { sorted } = prepared;
   const n = sorted.length;
   const leftovers: PairingLeftover[] = [...prepared.invalid];
-  const stats: PairingStats = {
-    method: "none",
-    candidates: candidates.length,
-    validCandidates: n,
-    admissibleEdges: 0,
-    components: 0,
-    largestComponent: 0,
-    pairsFound: 0,
-    pairs: 0,
-    totalImbalance: 0,
-    solveRounds: 0,
-    solverEdges: 0,
-  };
+  const stats = emptyStats("none", candidates.length, n);
   if (!options.allowSameEnvelope && !options.allowAcrossEnvelopes) {
     for (const candidate of sorted) {
       leftovers.push({

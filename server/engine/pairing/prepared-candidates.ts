@@ -6,7 +6,7 @@
 
 import { relativeDifference } from "./admissible-pairs.ts";
 import type { SortedCandidateValues } from "./admissible-pairs.ts";
-import type { AcceptanceRule, PairingCandidate, PairingLeftover, SectionPair, ValueLabel } from "./types.ts";
+import type { AcceptanceRule, PairingCandidate, PairingLeftover, PairingStats, SectionPair, ValueLabel } from "./types.ts";
 
 export interface PreparedCandidates {
   valueCount: number;
@@ -89,6 +89,23 @@ export function prepareCandidates(
 }
 
 /** Throws RangeError unless maxPairs is absent or a non-negative integer: checkMaxPairs(1.5) throws. */
+/** Statistics before any pairing has been done; both pairing methods start from these. */
+export function emptyStats(method: PairingStats["method"], candidateCount: number, validCandidates: number): PairingStats {
+  return {
+    method,
+    candidates: candidateCount,
+    validCandidates,
+    admissibleEdges: 0,
+    components: 0,
+    largestComponent: 0,
+    pairsFound: 0,
+    pairs: 0,
+    totalImbalance: 0,
+    solveRounds: 0,
+    solverEdges: 0,
+  };
+}
+
 export function checkMaxPairs(maxPairs: number | undefined): void {
   if (maxPairs !== undefined && (!Number.isInteger(maxPairs) || maxPairs < 0)) {
     throw new RangeError(`maxPairs ${maxPairs} must be a non-negative integer`);

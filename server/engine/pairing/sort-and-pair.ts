@@ -3,9 +3,9 @@
  */
 
 import { relativeDifference, RELATIVE_DIFFERENCE_TOLERANCE } from "./admissible-pairs.ts";
-import { checkMaxPairs, comparePairsByBalance, formatPercent, makePair, prepareCandidates } from "./prepared-candidates.ts";
+import { checkMaxPairs, comparePairsByBalance, emptyStats, formatPercent, makePair, prepareCandidates } from "./prepared-candidates.ts";
 import type { PreparedCandidates } from "./prepared-candidates.ts";
-import type { AcceptanceRule, PairingCandidate, PairingLeftover, PairingOptions, PairingResult, PairingStats, SectionPair } from "./types.ts";
+import type { AcceptanceRule, PairingCandidate, PairingLeftover, PairingOptions, PairingResult, SectionPair } from "./types.ts";
 
 /**
  * Sort-and-pair: sort by the first value, walk the list, and pair a section with the next one
@@ -27,19 +27,7 @@ export function greedySortAndPair(candidates: PairingCandidate[], rule: Acceptan
   const { sorted } = prepared;
   const n = sorted.length;
   const leftovers: PairingLeftover[] = [...prepared.invalid];
-  const stats: PairingStats = {
-    method: "sort-and-pair",
-    candidates: candidates.length,
-    validCandidates: n,
-    admissibleEdges: 0,
-    components: 0,
-    largestComponent: 0,
-    pairsFound: 0,
-    pairs: 0,
-    totalImbalance: 0,
-    solveRounds: 0,
-    solverEdges: 0,
-  };
+  const stats = emptyStats("sort-and-pair", candidates.length, n);
   if (!options.allowSameEnvelope && !options.allowAcrossEnvelopes) {
     stats.method = "none";
     for (const candidate of sorted) {

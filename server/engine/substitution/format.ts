@@ -1,4 +1,5 @@
 /** Small text helpers shared by the substitution files. */
+import { PIN_ELEMENT_NAMES } from "../tube-types/index.ts";
 
 // Pin labels are few ("1".."9", "cap"), and sorting them is the ranker's innermost loop.
 const pinNumbers = new Map<string, number>();
@@ -58,22 +59,7 @@ export function normaliseDesignation(name: string): string {
   return name.toUpperCase().replace(/[\s-]+/g, "");
 }
 
-const ELEMENT_NAMES: Record<string, string> = {
-  a: "plate",
-  g1: "control grid",
-  g2: "screen grid",
-  g3: "suppressor grid",
-  k: "cathode",
-  bp: "beam plates",
-  h: "heater",
-  hct: "heater centre tap",
-  f: "filament",
-  fct: "filament centre tap",
-  s: "internal shield",
-  ts: "target",
-  ic: "internal connection",
-  nc: "no connection",
-};
+const ELEMENT_NAMES: Readonly<Record<string, string>> = PIN_ELEMENT_NAMES;
 
 /**
  * Plain name of a pin element, with its section when it has one.

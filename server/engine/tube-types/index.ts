@@ -54,6 +54,24 @@ export type PinElement =
   | "ic"
   | "nc";
 
+/** Plain-English names of the elements, for forms, pin tables and explanations. */
+export const PIN_ELEMENT_NAMES: Readonly<Record<PinElement, string>> = {
+  a: "plate",
+  g1: "control grid",
+  g2: "screen grid",
+  g3: "suppressor grid",
+  k: "cathode",
+  bp: "beam plates",
+  h: "heater",
+  hct: "heater centre tap",
+  f: "filament",
+  fct: "filament centre tap",
+  s: "internal shield",
+  ts: "target",
+  ic: "internal connection",
+  nc: "no connection",
+};
+
 export interface PinAssignment {
   /** Pin label as printed on the basing diagram: "1".."9", or a lead name on wire-ended types. */
   pin: string;
