@@ -8,7 +8,7 @@
 import { readdirSync, readFileSync } from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
-import type { PinAssignment, PinElement, SectionKind, SectionSpec, TubeClass, TubeTypeSpec } from "../engine/tube-types/index.ts";
+import { hasNoHeater, sectionMaxRatings, type PinAssignment, type PinElement, type SectionKind, type SectionSpec, type TubeClass, type TubeTypeSpec } from "../engine/tube-types/index.ts";
 import { tubeLibraryFileSchema } from "../schemas/tube-type-schema.ts";
 
 /** data/tube-types in this checkout. */
@@ -252,7 +252,7 @@ function checkPins(spec: TubeTypeSpec, report: Report): void {
 }
 
 function isColdCathode(spec: TubeTypeSpec): boolean {
-  return spec.heater.volts === 0 && spec.heater.amps === 0;
+  return hasNoHeater(spec);
 }
 
 /** Pins of one section: its own electrodes plus common electrodes (no section), e.g. a shared cathode. */
@@ -265,6 +265,7 @@ function checkSections(spec: TubeTypeSpec, report: Report): void {
   // The filament is the cathode of a directly heated type; some rectifiers join the cathode to a heater end.
   const cathode: PinElement[] = directlyHeated ? ["f", "fct"] : ["k"];
   const notesMentionSuppressor = /\bg3\b|suppressor/i.test(spec.notes ?? "");
+  const notesMention = (grid: string) => new RegExp(`\\b${grid}\\b`, "i").test(spec.notes ?? "");
 
   for (const section of spec.sections) {
     const missing: string[] = [];
@@ -285,6 +286,16 @@ function checkSections(spec: TubeTypeSpec, report: Report): void {
         need(directlyHeated ? "f" : "k", cathode);
         if (!sectionHas(spec, section.index, ["g3"]) && !notesMentionSuppressor) missing.push("g3 (on a pin, or described in notes when tied inside)");
         break;
+      case "heptode":
+        need("a", ["a"]);
+        need("g1", ["g1"]);
+        need("g2", ["g2"]);
+        need("g3", ["g3"]);
+        need(directlyHeated ? "f" : "k", cathode);
+        for (const grid of ["g4", "g5"] as const) {
+          if (!sectionHas(spec, section.index, [grid]) && !notesMention(grid)) missing.push(`${grid} (on a pin, or described in notes when joined inside)`);
+        }
+        break;
       case "beam-tetrode":
         need("a", ["a"]);
         need("g1", ["g1"]);
@@ -302,12 +313,19 @@ function checkSections(spec: TubeTypeSpec, report: Report): void {
       case "regulator":
         need("a", ["a"]);
         need("k", ["k"]);
+        if (section.glow === undefined) report(`section ${section.index} (regulator) needs glow data: operating and striking volts, current range`);
+        else if (spec.maxRatings.outputMilliamps !== undefined && section.glow.maxMilliamps > spec.maxRatings.outputMilliamps) {
+          report(`section ${section.index} regulates up to ${section.glow.maxMilliamps} mA, above the maximum output ${spec.maxRatings.outputMilliamps} mA`);
+        }
         break;
       case "indicator":
         need("ts or a", ["ts", "a"]);
         break;
     }
     if (missing.length > 0) report(`section ${section.index} (${section.kind}) lacks ${missing.join(", ")}`);
+    if (spec.class === "vacuum-fluorescent" && spec.sections.length > 1 && section.label === undefined) {
+      report(`section ${section.index} needs a label: the segments of a display are not interchangeable`);
+    }
     if (!spec.pins.some((pin) => pin.section === section.index) && spec.sections.length > 1) {
       report(`section ${section.index} has no pin of its own`);
     }
@@ -361,6 +379,7 @@ const CLASS_RULES: Record<TubeClass, { describe: string; fits: (counts: KindCoun
   "dual-diode": { describe: "two diodes", fits: (c, n) => n === 2 && c.diode === 2 },
   "diode-triode": { describe: "a triode and one or more diodes", fits: (c, n) => c.triode === 1 && c.diode >= 1 && n === 1 + c.diode },
   "diode-pentode": { describe: "a pentode and one or more diodes", fits: (c, n) => c.pentode === 1 && c.diode >= 1 && n === 1 + c.diode },
+  heptode: { describe: "one heptode", fits: (c, n) => n === 1 && c.heptode === 1 },
   rectifier: { describe: "one or two rectifier sections", fits: (c, n) => n >= 1 && n <= 2 && c.rectifier === n },
   thyratron: { describe: "one or two thyratrons", fits: (c, n) => n >= 1 && n <= 2 && c.thyratron === n },
   "voltage-regulator": { describe: "one regulator", fits: (c, n) => n === 1 && c.regulator === 1 },
@@ -369,7 +388,7 @@ const CLASS_RULES: Record<TubeClass, { describe: string; fits: (counts: KindCoun
 };
 
 function checkClass(spec: TubeTypeSpec, report: Report): void {
-  const counts: KindCounts = { triode: 0, pentode: 0, "beam-tetrode": 0, diode: 0, rectifier: 0, thyratron: 0, regulator: 0, indicator: 0 };
+  const counts: KindCounts = { triode: 0, pentode: 0, "beam-tetrode": 0, heptode: 0, diode: 0, rectifier: 0, thyratron: 0, regulator: 0, indicator: 0 };
   for (const section of spec.sections) counts[section.kind] += 1;
   const rule = CLASS_RULES[spec.class];
   if (!rule.fits(counts, spec.sections.length)) {
@@ -378,8 +397,8 @@ function checkClass(spec: TubeTypeSpec, report: Report): void {
 }
 
 function checkTypicalPoints(spec: TubeTypeSpec, report: Report): void {
-  const ratings = spec.maxRatings;
   for (const section of spec.sections) {
+    const ratings = sectionMaxRatings(spec, section.index);
     section.typical.forEach((point, position) => {
       const where = `section ${section.index} typical point ${position}`;
       const plateWatts = (point.plateVolts * point.plateMilliamps) / 1000;
@@ -406,14 +425,18 @@ function checkTypicalPoints(spec: TubeTypeSpec, report: Report): void {
 }
 
 function isScreenGridKind(section: SectionSpec): boolean {
-  return section.kind === "pentode" || section.kind === "beam-tetrode";
+  return section.kind === "pentode" || section.kind === "beam-tetrode" || section.kind === "heptode";
 }
 
 /** The value groups that must each carry a source, as paths. */
 function sourcedPaths(spec: TubeTypeSpec): string[] {
   const paths = ["pins", "heater"];
   for (const key of Object.keys(spec.maxRatings)) paths.push(`maxRatings.${key}`);
-  for (const section of spec.sections) section.typical.forEach((_, position) => paths.push(`sections.${section.index}.typical.${position}`));
+  for (const section of spec.sections) {
+    section.typical.forEach((_, position) => paths.push(`sections.${section.index}.typical.${position}`));
+    for (const key of Object.keys(section.maxRatings ?? {})) paths.push(`sections.${section.index}.maxRatings.${key}`);
+    if (section.glow !== undefined) paths.push(`sections.${section.index}.glow`);
+  }
   if (spec.aliases.length > 0) paths.push("aliases");
   return paths;
 }
@@ -448,7 +471,13 @@ function sourceKeyNamesAValue(spec: TubeTypeSpec, key: string): boolean {
       if (parts.length === 1) return spec.sections.length > 0;
       const section = spec.sections.find((candidate) => candidate.index === Number(parts[1]));
       if (section === undefined) return false;
-      if (parts.length <= 3) return parts.length === 2 || section.typical.length > 0;
+      if (parts.length === 2) return true;
+      if (parts[2] === "glow") return section.glow !== undefined;
+      if (parts[2] === "maxRatings") {
+        if (section.maxRatings === undefined) return false;
+        return parts.length === 3 || (section.maxRatings as Record<string, unknown>)[parts[3]] !== undefined;
+      }
+      if (parts.length === 3) return section.typical.length > 0;
       return section.typical[Number(parts[3])] !== undefined;
     }
     default:

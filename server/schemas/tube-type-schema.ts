@@ -10,6 +10,7 @@
 import { z } from "zod";
 import type {
   BaseFamily,
+  GlowDischarge,
   HeaterSpec,
   MaxRatings,
   OperatingPoint,
@@ -35,6 +36,7 @@ export const TUBE_CLASSES = [
   "dual-diode",
   "diode-triode",
   "diode-pentode",
+  "heptode",
   "rectifier",
   "thyratron",
   "voltage-regulator",
@@ -49,6 +51,8 @@ export const PIN_ELEMENTS = [
   "g1",
   "g2",
   "g3",
+  "g4",
+  "g5",
   "k",
   "bp",
   "h",
@@ -65,6 +69,7 @@ export const SECTION_KINDS = [
   "triode",
   "pentode",
   "beam-tetrode",
+  "heptode",
   "diode",
   "rectifier",
   "thyratron",
@@ -73,7 +78,7 @@ export const SECTION_KINDS = [
 ] as const satisfies readonly SectionKind[];
 
 /** Elements that belong to one section; the others (heater, filament, shield, IC, NC) belong to the envelope. */
-export const SECTION_ELEMENTS: readonly PinElement[] = ["a", "g1", "g2", "g3", "k", "bp", "ts"];
+export const SECTION_ELEMENTS: readonly PinElement[] = ["a", "g1", "g2", "g3", "g4", "g5", "k", "bp", "ts"];
 
 /** Plain-English names of the elements, for forms and messages (defined with the engine's shape). */
 export { PIN_ELEMENT_NAMES };
@@ -96,7 +101,11 @@ export const BASING_CODE_PATTERN = /^[0-9]{1,2}[A-Z]{1,3}$/;
  * `sources` keys are field paths: "pins", "heater", "maxRatings" or "maxRatings.plateVolts",
  * "sections.<section index>.typical.<0-based point>", "aliases". A key covers the fields below it.
  */
-export const SOURCE_KEY_PATTERN = /^(?:pins|heater(?:\.[a-zA-Z]+)?|maxRatings(?:\.[a-zA-Z]+)?|aliases|class|basingCode|sections(?:\.[0-9]+(?:\.typical(?:\.[0-9]+)?)?)?)$/;
+export const SOURCE_KEY_PATTERN =
+  /^(?:pins|heater(?:\.[a-zA-Z]+)?|maxRatings(?:\.[a-zA-Z]+)?|aliases|class|basingCode|sections(?:\.[0-9]+(?:\.typical(?:\.[0-9]+)?|\.maxRatings(?:\.[a-zA-Z]+)?|\.glow)?)?)$/;
+
+/** Section labels: short lower-case names such as "segment a" or "dot". */
+export const SECTION_LABEL_PATTERN = /^[a-z0-9][a-z0-9 .-]{0,23}$/;
 
 /** A source names a document with its year, or says "derived: …" (from other sourced values), "entered by …" (user-added types), "common practice, no source" or the honest "from memory". */
 export const SOURCE_TEXT_PATTERN = /^(?:from memory|common practice, no source|derived: .+|entered by .+|.*\b(?:18|19|20)[0-9]{2}\b.*)$/;
@@ -142,11 +151,21 @@ export const operatingPointSchema = z.strictObject({
   cathodeResistorOhms: positive("cathode resistor (Ω)").optional(),
 });
 
-export const sectionSpecSchema = z.strictObject({
-  index: z.number({ error: "section index must be a number" }).int("section index must be a whole number").positive("section index must be 1 or more"),
-  kind: z.enum(SECTION_KINDS, { error: `section kind must be one of ${SECTION_KINDS.join(", ")}` }),
-  typical: z.array(operatingPointSchema, { error: "section typical must be a list of operating points" }),
-});
+export const glowDischargeSchema = z
+  .strictObject({
+    operatingVolts: positive("glow operating volts"),
+    strikingVolts: positive("glow striking volts"),
+    minMilliamps: nonNegative("glow minimum milliamps"),
+    maxMilliamps: positive("glow maximum milliamps"),
+  })
+  .superRefine((glow, context) => {
+    if (glow.strikingVolts < glow.operatingVolts) {
+      context.addIssue({ code: "custom", path: ["strikingVolts"], message: "glow striking volts must be at least the operating volts (a glow tube fires above the voltage it holds)" });
+    }
+    if (glow.minMilliamps >= glow.maxMilliamps) {
+      context.addIssue({ code: "custom", path: ["maxMilliamps"], message: "glow maximum milliamps must be above the minimum" });
+    }
+  });
 
 export const heaterSpecSchema = z.strictObject({
   // Zero only on cold-cathode types (glow regulators); the library check enforces that.
@@ -159,6 +178,7 @@ export const heaterSpecSchema = z.strictObject({
     .optional(),
   warmUpSeconds: positive("heater warm-up seconds").optional(),
   directlyHeated: z.boolean({ error: "directlyHeated must be true or false" }).optional(),
+  coldCathode: z.boolean({ error: "coldCathode must be true or false" }).optional(),
 });
 
 export const maxRatingsSchema = z.strictObject({
@@ -171,6 +191,21 @@ export const maxRatingsSchema = z.strictObject({
   peakInverseVolts: positive("maximum peak inverse volts").optional(),
   outputMilliamps: positive("maximum output milliamps").optional(),
 });
+
+export const sectionSpecSchema = z
+  .strictObject({
+    index: z.number({ error: "section index must be a number" }).int("section index must be a whole number").positive("section index must be 1 or more"),
+    kind: z.enum(SECTION_KINDS, { error: `section kind must be one of ${SECTION_KINDS.join(", ")}` }),
+    label: z.string({ error: "section label must be text" }).regex(SECTION_LABEL_PATTERN, "section label must be lower-case letters, digits, spaces, dots or dashes, at most 24 characters (e.g. segment a)").optional(),
+    typical: z.array(operatingPointSchema, { error: "section typical must be a list of operating points" }),
+    maxRatings: maxRatingsSchema.optional(),
+    glow: glowDischargeSchema.optional(),
+  })
+  .superRefine((section, context) => {
+    if (section.glow !== undefined && section.kind !== "regulator") {
+      context.addIssue({ code: "custom", path: ["glow"], message: `glow data belong to regulator sections, not to a ${section.kind}` });
+    }
+  });
 
 // ── One type ───────────────────────────────────────────────────────────────────────────────
 
@@ -227,9 +262,21 @@ export const tubeTypeSpecSchema = z
 
     if (spec.variantOf === spec.designation) context.addIssue({ code: "custom", path: ["variantOf"], message: "variantOf must name another type" });
 
+    const labels = new Set<string>();
+    spec.sections.forEach((section, position) => {
+      if (section.label === undefined) return;
+      if (labels.has(section.label)) context.addIssue({ code: "custom", path: ["sections", position, "label"], message: `section label ${section.label} is used twice` });
+      labels.add(section.label);
+    });
+
     const heater = spec.heater;
+    const zero = heater.volts === 0 && heater.amps === 0;
     if ((heater.volts === 0) !== (heater.amps === 0)) {
       context.addIssue({ code: "custom", path: ["heater"], message: "heater volts and amps must both be zero (cold cathode) or both be positive" });
+    } else if (zero && heater.coldCathode !== true) {
+      context.addIssue({ code: "custom", path: ["heater", "coldCathode"], message: "a heater of 0 V and 0 A must say coldCathode: true (no heater)" });
+    } else if (!zero && heater.coldCathode === true) {
+      context.addIssue({ code: "custom", path: ["heater", "coldCathode"], message: "a cold-cathode type has no heater: give 0 V and 0 A" });
     }
   });
 
@@ -250,10 +297,11 @@ const sameSectionSpec: Same<z.infer<typeof sectionSpecSchema>, SectionSpec> = tr
 const sameOperatingPoint: Same<z.infer<typeof operatingPointSchema>, OperatingPoint> = true;
 const sameHeaterSpec: Same<z.infer<typeof heaterSpecSchema>, HeaterSpec> = true;
 const sameMaxRatings: Same<z.infer<typeof maxRatingsSchema>, MaxRatings> = true;
+const sameGlowDischarge: Same<z.infer<typeof glowDischargeSchema>, GlowDischarge> = true;
 const sameEnumerations: [
   Same<(typeof TUBE_CLASSES)[number], TubeClass>,
   Same<(typeof BASE_FAMILIES)[number], BaseFamily>,
   Same<(typeof PIN_ELEMENTS)[number], PinElement>,
   Same<(typeof SECTION_KINDS)[number], SectionKind>,
 ] = [true, true, true, true];
-void [sameTubeTypeSpec, samePinAssignment, sameSectionSpec, sameOperatingPoint, sameHeaterSpec, sameMaxRatings, sameEnumerations];
+void [sameTubeTypeSpec, samePinAssignment, sameSectionSpec, sameOperatingPoint, sameHeaterSpec, sameMaxRatings, sameGlowDischarge, sameEnumerations];

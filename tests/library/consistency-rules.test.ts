@@ -253,3 +253,98 @@ describe("sources", () => {
     expect(problemsOf(spec)).toEqual([]);
   });
 });
+
+// Invented test shapes (like the fixtures above): a heptode, a glow regulator and a display.
+function heptode(overrides: Partial<TubeTypeSpec> = {}): TubeTypeSpec {
+  return {
+    designation: "TEST3",
+    aliases: [],
+    class: "heptode",
+    base: "B7G",
+    pins: [
+      { pin: "1", element: "g3", section: 1 },
+      { pin: "2", element: "k", section: 1 },
+      { pin: "3", element: "h" },
+      { pin: "4", element: "h" },
+      { pin: "5", element: "a", section: 1 },
+      { pin: "6", element: "g2", section: 1 },
+      { pin: "7", element: "g1", section: 1 },
+    ],
+    sections: [{ index: 1, kind: "heptode", typical: [{ plateVolts: 250, gridVolts: -1.5, screenVolts: 100, plateMilliamps: 3 }] }],
+    heater: { volts: 6.3, amps: 0.3 },
+    maxRatings: { plateWatts: 1 },
+    notes: "g4 is joined to g2 inside and g5 to the cathode.",
+    sources: { pins: "from memory", heater: "from memory", maxRatings: "from memory", "sections.1.typical.0": "from memory" },
+    ...overrides,
+  };
+}
+
+function glowRegulator(overrides: Partial<TubeTypeSpec> = {}): TubeTypeSpec {
+  return {
+    designation: "TEST4",
+    aliases: [],
+    class: "voltage-regulator",
+    base: "B7G",
+    pins: [
+      { pin: "1", element: "a", section: 1 },
+      { pin: "2", element: "k", section: 1 },
+      { pin: "3", element: "nc" },
+      { pin: "4", element: "nc" },
+      { pin: "5", element: "nc" },
+      { pin: "6", element: "nc" },
+      { pin: "7", element: "nc" },
+    ],
+    sections: [{ index: 1, kind: "regulator", typical: [], glow: { operatingVolts: 150, strikingVolts: 185, minMilliamps: 5, maxMilliamps: 30 } }],
+    heater: { volts: 0, amps: 0, coldCathode: true },
+    maxRatings: { outputMilliamps: 30 },
+    sources: { pins: "from memory", heater: "from memory", maxRatings: "from memory", "sections.1.glow": "from memory" },
+    ...overrides,
+  };
+}
+
+describe("heptodes, regulators, displays and per-section ratings", () => {
+  it("accepts a heptode whose g4 and g5 are described in notes, and reports them missing otherwise", () => {
+    expect(problemsOf(heptode())).toEqual([]);
+    expect(problemsOf(heptode({ notes: "" })).join("\n")).toMatch(/section 1 \(heptode\) lacks g4 \(on a pin, or described in notes when joined inside\), g5/);
+  });
+  it("requires glow data on a regulator section, within the output rating", () => {
+    expect(problemsOf(glowRegulator())).toEqual([]);
+    const withoutGlow = glowRegulator();
+    delete withoutGlow.sections[0].glow;
+    delete withoutGlow.sources["sections.1.glow"];
+    expect(problemsOf(withoutGlow).join("\n")).toMatch(/needs glow data: operating and striking volts, current range/);
+    const overRated = glowRegulator({ maxRatings: { outputMilliamps: 20 } });
+    expect(problemsOf(overRated).join("\n")).toMatch(/regulates up to 30 mA, above the maximum output 20 mA/);
+  });
+  it("checks typical points against a section's own ratings and wants them sourced", () => {
+    const spec = twinTriode();
+    spec.sections[0].maxRatings = { plateWatts: 2 };
+    // 250 V × 10.5 mA = 2.625 W against the section's own 2 W (arithmetic)
+    const text = problemsOf(spec).join("\n");
+    expect(text).toMatch(/section 1 typical point 0 dissipates 2.63 W at the plate, above the maximum 2 W/);
+    expect(text).toMatch(/no source for sections.1.maxRatings.plateWatts/);
+  });
+  it("wants every segment of a multi-segment display labelled", () => {
+    const display: TubeTypeSpec = {
+      designation: "TEST5",
+      aliases: [],
+      class: "vacuum-fluorescent",
+      base: "subminiature",
+      pins: [
+        { pin: "fil-1", element: "f" },
+        { pin: "fil-2", element: "f" },
+        { pin: "grid", element: "g1" },
+        { pin: "seg-a", element: "a", section: 1 },
+        { pin: "seg-b", element: "a", section: 2 },
+      ],
+      sections: [
+        { index: 1, kind: "indicator", label: "segment a", typical: [] },
+        { index: 2, kind: "indicator", typical: [] },
+      ],
+      heater: { volts: 1, amps: 0.05, directlyHeated: true },
+      maxRatings: {},
+      sources: { pins: "from memory", heater: "from memory" },
+    };
+    expect(problemsOf(display)).toEqual(["TEST5: section 2 needs a label: the segments of a display are not interchangeable"]);
+  });
+});

@@ -108,7 +108,7 @@ describe("loadTubeLibrary errors", () => {
   it("lists every schema problem as file › path: message in one error", () => {
     const good = firstTypeOf("dual-triodes-noval.json");
     const badHeater = { ...structuredClone(good), designation: "TESTA", aliases: [], heater: { volts: -1, amps: 0.15 } };
-    const badClass = { ...structuredClone(good), designation: "TESTB", aliases: [], class: "heptode" };
+    const badClass = { ...structuredClone(good), designation: "TESTB", aliases: [], class: "octode" };
     const dir = libraryDirectory({
       "a.json": JSON.stringify({ types: [good, good, good, badHeater] }),
       "b.json": JSON.stringify({ types: [badClass] }),

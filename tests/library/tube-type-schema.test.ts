@@ -90,9 +90,26 @@ describe("tubeTypeSpecSchema", () => {
     expect(messagesFor({ ...validSpec(), aliases: ["EF94", "EF94"] })).toContain("aliases.1: alias EF94 is listed twice");
   });
 
-  it("accepts a cold-cathode heater only as 0 V with 0 A", () => {
-    expect(messagesFor({ ...validSpec(), heater: { volts: 0, amps: 0 } })).toEqual([]);
+  it("accepts a cold-cathode heater only as 0 V with 0 A, said outright", () => {
+    expect(messagesFor({ ...validSpec(), heater: { volts: 0, amps: 0, coldCathode: true } })).toEqual([]);
+    expect(messagesFor({ ...validSpec(), heater: { volts: 0, amps: 0 } })).toContain("heater.coldCathode: a heater of 0 V and 0 A must say coldCathode: true (no heater)");
+    expect(messagesFor({ ...validSpec(), heater: { volts: 6.3, amps: 0.3, coldCathode: true } })).toContain("heater.coldCathode: a cold-cathode type has no heater: give 0 V and 0 A");
     expect(messagesFor({ ...validSpec(), heater: { volts: 0, amps: 0.3 } }).join("\n")).toMatch(/heater volts and amps must both be zero/);
+  });
+
+  it("takes glow data on regulator sections only, striking at or above operating", () => {
+    const regulator = { index: 1, kind: "regulator", typical: [], glow: { operatingVolts: 150, strikingVolts: 120, minMilliamps: 30, maxMilliamps: 5 } };
+    const messages = messagesFor({ ...validSpec(), sections: [regulator] });
+    expect(messages).toContain("sections.0.glow.strikingVolts: glow striking volts must be at least the operating volts (a glow tube fires above the voltage it holds)");
+    expect(messages).toContain("sections.0.glow.maxMilliamps: glow maximum milliamps must be above the minimum");
+    const pentodeWithGlow = { ...(validSpec().sections as Record<string, unknown>[])[0], glow: { operatingVolts: 150, strikingVolts: 185, minMilliamps: 5, maxMilliamps: 30 } };
+    expect(messagesFor({ ...validSpec(), sections: [pentodeWithGlow] })).toContain("sections.0.glow: glow data belong to regulator sections, not to a pentode");
+  });
+
+  it("refuses a section label used twice in one type", () => {
+    const base = (validSpec().sections as Record<string, unknown>[])[0];
+    const messages = messagesFor({ ...validSpec(), sections: [{ ...base, label: "segment a" }, { ...base, index: 2, label: "segment a" }] });
+    expect(messages).toContain("sections.1.label: section label segment a is used twice");
   });
 
   it("requires each source to name a document with its year or say from memory", () => {
@@ -117,6 +134,6 @@ describe("form enumerations", () => {
   it("lists the classes, bases and pin elements of the engine's shape", () => {
     expect(TUBE_CLASSES).toContain("dual-triode");
     expect(BASE_FAMILIES).toEqual(["B7G", "B9A", "octal", "loctal", "subminiature", "B8G", "other"]);
-    expect(PIN_ELEMENTS).toHaveLength(14);
+    expect(PIN_ELEMENTS).toHaveLength(16);
   });
 });

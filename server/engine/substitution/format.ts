@@ -1,5 +1,5 @@
 /** Small text helpers shared by the substitution files. */
-import { PIN_ELEMENT_NAMES } from "../tube-types/index.ts";
+import { elementName, PIN_ELEMENT_NAMES, type PinElement, type SectionKind } from "../tube-types/index.ts";
 
 // Pin labels are few ("1".."9", "cap"), and sorting them is the ranker's innermost loop.
 const pinNumbers = new Map<string, number>();
@@ -62,11 +62,12 @@ export function normaliseDesignation(name: string): string {
 const ELEMENT_NAMES: Readonly<Record<string, string>> = PIN_ELEMENT_NAMES;
 
 /**
- * Plain name of a pin element, with its section when it has one.
+ * Plain name of a pin element, with its section when it has one; `kind` names a heptode's grids
+ * by what they do.
  *
- * Example: `describeElement("g1", 2)` → "control grid (section 2)".
+ * Example: `describeElement("g1", 2)` → "control grid (section 2)"; `describeElement("g3", 1, "heptode")` → "signal grid (section 1)".
  */
-export function describeElement(element: string, section?: number): string {
-  const name = ELEMENT_NAMES[element] ?? element;
+export function describeElement(element: string, section?: number, kind?: SectionKind): string {
+  const name = element in ELEMENT_NAMES ? elementName(element as PinElement, kind) : element;
   return section !== undefined && section > 0 ? `${name} (section ${section})` : name;
 }

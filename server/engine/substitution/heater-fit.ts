@@ -2,7 +2,7 @@
  * Which way a heater runs on a given supply, and how a substitute's heater compares with the
  * socket type's on that supply.
  */
-import type { PinAssignment, TubeTypeSpec } from "../tube-types/index.ts";
+import { hasNoHeater, type PinAssignment, type TubeTypeSpec } from "../tube-types/index.ts";
 import type { HeaterFit, HeaterSupply } from "./types.ts";
 import { comparePinLabels, formatNumber } from "./format.ts";
 
@@ -71,7 +71,7 @@ export function heaterModeOnSupply(spec: TubeTypeSpec, supply: HeaterSupply): He
   const ends = spec.pins.filter(isHeaterEnd).map((pin) => pin.pin).sort(comparePinLabels);
   const taps = spec.pins.filter(isHeaterTap).map((pin) => pin.pin).sort(comparePinLabels);
 
-  if (heater.volts === 0 && heater.amps === 0) {
+  if (hasNoHeater(spec)) {
     if (supply.kind === "series") return { ok: false, reason: `${spec.designation} has no heater and would open ${describeSupply(supply)}` };
     return { ok: true, mode: "none", volts: 0, amps: 0, legA: [], legB: [] };
   }

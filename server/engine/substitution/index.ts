@@ -38,4 +38,5 @@ export { socketsForType, naturalHeaterSupply } from "./sockets-for-type.ts";
 export { commonCathodeGain, DEFAULT_TOLERANCES, ASSUMED_PLATE_LOAD_PER_PLATE_RESISTANCE } from "./characteristics.ts";
 export { HEATER_RATING_MATCH_FRACTION, WARM_UP_MATCH_SECONDS } from "./heater-fit.ts";
 export { MAX_SECTION_MAPPINGS } from "./pin-fit.ts";
+export { GLOW_VOLTS_TOLERANCE } from "./glow-fit.ts";
 export { MAX_VARIANT_CHAIN_STEPS } from "./identity.ts";

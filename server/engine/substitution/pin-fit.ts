@@ -68,8 +68,8 @@ function electrodeRole(element: string, section: number): string {
   return key;
 }
 
-function roleLabel(element: string, section: number): string {
-  return describeElement(element, section);
+function roleLabel(spec: TubeTypeSpec, element: string, section: number): string {
+  return describeElement(element, section, kindOf(spec, section));
 }
 
 function addLead(map: Map<string, string[]>, role: string, pin: string): void {
@@ -102,7 +102,7 @@ export function describeSocketWiring(socketType: TubeTypeSpec, heaterMode: Runni
     if (used !== null && !used.has(pin.pin)) continue;
     const role = electrodeRole(pin.element, section);
     addLead(leads, role, pin.pin);
-    roleInfo.set(role, { element: pin.element, ...(section > 0 ? { section } : {}), label: roleLabel(pin.element, section) });
+    roleInfo.set(role, { element: pin.element, ...(section > 0 ? { section } : {}), label: roleLabel(socketType, pin.element, section) });
     if (section > 0) sections.add(section);
   }
 
@@ -139,7 +139,8 @@ function kindOf(spec: TubeTypeSpec, index: number): SectionKind | undefined {
 
 /**
  * Every injective assignment of the socket's used sections to substitute sections of the same
- * kind (a symmetric dual triode offers both orders). Identity-like orders come first.
+ * kind and label (a symmetric dual triode offers both orders; display segment "a" only ever
+ * meets segment "a"). Identity-like orders come first.
  *
  * Returns `{ ok: false, reason }` when no assignment exists or the enumeration passes
  * `MAX_SECTION_MAPPINGS`.
@@ -164,9 +165,9 @@ export function enumerateSectionMappings(socketType: TubeTypeSpec, usedSections:
       return;
     }
     const socketSection = usedSections[position];
-    const wantedKind = kindOf(socketType, socketSection);
+    const wanted = socketType.sections.find((section) => section.index === socketSection);
     for (const section of candidateSections) {
-      if (taken.has(section.index) || section.kind !== wantedKind) continue;
+      if (taken.has(section.index) || section.kind !== wanted?.kind || section.label !== wanted.label) continue;
       taken.add(section.index);
       current.set(socketSection, section.index);
       visit(position + 1);
@@ -178,8 +179,9 @@ export function enumerateSectionMappings(socketType: TubeTypeSpec, usedSections:
 
   if (overflow) return { ok: false, reason: `more than ${MAX_SECTION_MAPPINGS} section mappings; too many sections to compare` };
   if (mappings.length === 0) {
-    const wanted = usedSections.map((index) => `${kindOf(socketType, index) ?? "unknown"} (section ${index})`).join(", ");
-    const offered = candidateSections.map((section) => section.kind).join(", ") || "no sections";
+    const describe = (section: { kind: SectionKind; label?: string } | undefined) => (section === undefined ? "unknown" : section.label === undefined ? section.kind : `${section.kind} "${section.label}"`);
+    const wanted = usedSections.map((index) => `${describe(socketType.sections.find((section) => section.index === index))} (section ${index})`).join(", ");
+    const offered = candidateSections.map((section) => describe(section)).join(", ") || "no sections";
     return { ok: false, reason: `the socket uses ${wanted || "no sections"}; ${candidate.designation} offers ${offered}` };
   }
   return { ok: true, mappings };
@@ -269,7 +271,7 @@ function describePinOf(candidate: TubeTypeSpec, status: ReadonlyMap<string, Cand
   if (entry.internalConnection) return "an internal connection (IC)";
   const names = candidate.pins
     .filter((assignment) => assignment.pin === pin && assignment.element !== "nc")
-    .map((assignment) => `its ${describeElement(assignment.element, normalisedSection(candidate, assignment))}`);
+    .map((assignment) => `its ${roleLabel(candidate, assignment.element, normalisedSection(candidate, assignment))}`);
   const unused = entry.unusedSectionElectrode ? ", in a section this socket does not use" : "";
   return `${names.join(" and ")}${unused}`;
 }
@@ -345,11 +347,11 @@ function isConflict(status: ReadonlyMap<string, CandidatePinStatus>, pin: string
   return false;
 }
 
-function candidateRoleLabel(role: string): string {
+function candidateRoleLabel(candidate: TubeTypeSpec, role: string): string {
   const parsed = parseRole(role);
   if (parsed.kind === "heater") return `heater supply ${role.slice("heater:".length)}`;
   if (parsed.kind === "tie") return `tie point`;
-  return roleLabel(parsed.element, parsed.section);
+  return roleLabel(candidate, parsed.element, parsed.section);
 }
 
 /**
@@ -443,7 +445,7 @@ export function planWiring(
       continue;
     }
     if (detail) candidatePins.sort(comparePinLabels);
-    const label = detail ? (wiring.roleInfo.get(role)?.label ?? candidateRoleLabel(role)) : "";
+    const label = detail ? (wiring.roleInfo.get(role)?.label ?? candidateRoleLabel(candidate, role)) : "";
     const sectionField = parsed.kind === "electrode" && parsed.section > 0 ? { section: parsed.section } : {};
     const isHeaterRole = parsed.kind === "heater";
 

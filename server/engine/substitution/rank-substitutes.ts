@@ -1,5 +1,5 @@
 /** The ranker: every library type judged against one socket, with its reasons. */
-import type { TubeTypeSpec } from "../tube-types/index.ts";
+import { sectionMaxRatings, type TubeTypeSpec } from "../tube-types/index.ts";
 import type {
   Candidate,
   CircuitOperatingValues,
@@ -14,6 +14,7 @@ import type {
 import { compareHeaters, heaterKindProblem, heaterModeOnSupply, type HeaterMode } from "./heater-fit.ts";
 import { bestWiringPlan, describeSocketWiring, enumerateSectionMappings, type SocketWiring, type WiringPlan } from "./pin-fit.ts";
 import { checkRatings } from "./ratings.ts";
+import { compareGlow } from "./glow-fit.ts";
 import { compareCharacteristics, DEFAULT_TOLERANCES, type CircuitPoint } from "./characteristics.ts";
 import { buildNameIndex, countGoodInStock, indexStock, relationTo } from "./identity.ts";
 import { scoreCandidate } from "./score.ts";
@@ -163,8 +164,14 @@ function judgeCandidate(context: RankingContext, candidate: TubeTypeSpec): Candi
   if (!candidateHeater.ok) reasons.push(candidateHeater.reason);
   const mappings = enumerateSectionMappings(socketType, wiring.usedSections, candidate);
   if (!mappings.ok) reasons.push(mappings.reason);
-  const ratings = checkRatings(candidate.designation, candidate.maxRatings, context.operating, context.deratingFactor);
+  // Sections of one kind carry the same ratings in practice, so the first mapping decides
+  // exclusion; the ratings are checked again below when the chosen wiring maps differently.
+  const ratingsUnder = (sectionMap: ReadonlyMap<number, number> | undefined) =>
+    checkRatings(candidate.designation, (socketSection) => sectionMaxRatings(candidate, sectionMap?.get(socketSection) ?? socketSection), context.operating, context.deratingFactor);
+  let ratings = ratingsUnder(mappings.ok ? mappings.mappings[0] : undefined);
   reasons.push(...ratings.failures);
+  const glowUnder = (sectionMapping: readonly SectionMappingEntry[]) => compareGlow(socketType, candidate, sectionMapping, context.operating);
+  if (mappings.ok) reasons.push(...glowUnder(firstMappingEntries(mappings.mappings[0])).failures);
 
   if (!candidateHeater.ok || !mappings.ok) return { designation: candidate.designation, reasons };
 
@@ -201,6 +208,9 @@ function judgeCandidate(context: RankingContext, candidate: TubeTypeSpec): Candi
     }
   }
   if (reasons.length > 0 || fit === null) return { designation: candidate.designation, reasons };
+  ratings = ratingsUnder(new Map(plan.sectionMapping.map((entry) => [entry.socketSection, entry.candidateSection])));
+  const glow = glowUnder(plan.sectionMapping);
+  if (ratings.failures.length > 0 || glow.failures.length > 0) return { designation: candidate.designation, reasons: [...ratings.failures, ...glow.failures] };
 
   const characteristics = compareCharacteristics(socketType, candidate, plan.sectionMapping, context.circuitPoints, tolerances);
   const heater = compareHeaters(socketType, candidate, context.socketHeater, candidateHeater, socket.heaterSupply, fit === "rewire" && plan.heaterLeadsMove);
@@ -227,6 +237,7 @@ function judgeCandidate(context: RankingContext, candidate: TubeTypeSpec): Candi
   explanation.push(`heater: ${heater.details}`);
   if (heater.seriesStringNote) explanation.push(`series string: ${heater.seriesStringNote}`);
   explanation.push(describeRatings(context, ratings.checks.length, leastHeadroom, ratings.unchecked));
+  for (const note of glow.notes) explanation.push(note.startsWith("warning: ") ? note : `regulation: ${note}`);
   explanation.push(`characteristics: ${characteristics.note}`);
   for (const warning of characteristics.outsideTolerance) explanation.push(`warning: ${warning}`);
   if (fit === "rewire") for (const conflict of plan.internalConnectionConflicts) explanation.push(`note: ${conflict}; the rewire takes that lead off`);
@@ -235,6 +246,10 @@ function judgeCandidate(context: RankingContext, candidate: TubeTypeSpec): Candi
   explanation.push(`${inStockGood} good in stock`);
 
   return { designation: candidate.designation, relation: relation.relation, score, pins, heater, ratings: ratings.checks, characteristics, inStockGood, explanation };
+}
+
+function firstMappingEntries(sectionMap: ReadonlyMap<number, number>): SectionMappingEntry[] {
+  return [...sectionMap].map(([socketSection, candidateSection]) => ({ socketSection, candidateSection }));
 }
 
 function describeWork(plan: WiringPlan): string[] {

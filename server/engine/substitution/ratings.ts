@@ -28,19 +28,20 @@ const RATING_NAMES: Record<string, string> = {
 };
 
 /**
- * Checks each used section's circuit values against the substitute's per-section maximum
- * ratings times `deratingFactor`: plate volts, plate dissipation Pa = Va·Ia, screen volts,
+ * Checks each used section's circuit values against the maximum ratings of the substitute
+ * section that serves it (`ratingsForSection(socket section)`: a section's own ratings over the
+ * envelope's) times `deratingFactor`: plate volts, plate dissipation Pa = Va·Ia, screen volts,
  * cathode current Ik = Ia + Ig2 (screen current when given), heater–cathode volts.
  * headroomPercent = (deratedMax − circuit) / deratedMax × 100.
  *
  * Never throws; a rating missing from the data is listed in `unchecked`.
  *
- * Example: 250 V, 10.5 mA against { plateVolts: 300, plateWatts: 2.5 }, factor 1 →
+ * Example: 250 V, 10.5 mA against () => ({ plateVolts: 300, plateWatts: 2.5 }), factor 1 →
  * plateVolts ok (16.7 % headroom), plateWatts 2.625 W > 2.5 W (−5 %, failure).
  */
 export function checkRatings(
   candidateDesignation: string,
-  maxRatings: MaxRatings,
+  ratingsForSection: (socketSection: number) => MaxRatings,
   operating: readonly CircuitOperatingValues[],
   deratingFactor: number,
 ): RatingsResult {
@@ -50,7 +51,7 @@ export function checkRatings(
 
   const check = (rating: keyof MaxRatings, circuitValue: number | undefined, section: number, circuitNote = "") => {
     if (circuitValue === undefined) return;
-    const maxValue = maxRatings[rating];
+    const maxValue = ratingsForSection(section)[rating];
     if (maxValue === undefined) {
       unchecked.add(RATING_NAMES[rating] ?? rating);
       return;

@@ -18,6 +18,7 @@ export type TubeClass =
   | "dual-diode"
   | "diode-triode"
   | "diode-pentode"
+  | "heptode"
   | "rectifier"
   | "thyratron"
   | "voltage-regulator"
@@ -42,7 +43,9 @@ export type PinElement =
   | "a" // plate (anode)
   | "g1" // control grid
   | "g2" // screen grid
-  | "g3" // suppressor grid
+  | "g3" // suppressor grid (signal grid on a heptode)
+  | "g4" // fourth grid (a heptode's second screen)
+  | "g5" // fifth grid (a heptode's suppressor)
   | "k" // cathode
   | "bp" // beam plates
   | "h" // heater end
@@ -54,12 +57,14 @@ export type PinElement =
   | "ic"
   | "nc";
 
-/** Plain-English names of the elements, for forms, pin tables and explanations. */
+/** Plain-English names of the elements, for forms, pin tables and explanations (see `elementName` for heptodes). */
 export const PIN_ELEMENT_NAMES: Readonly<Record<PinElement, string>> = {
   a: "plate",
   g1: "control grid",
   g2: "screen grid",
   g3: "suppressor grid",
+  g4: "grid 4",
+  g5: "grid 5",
   k: "cathode",
   bp: "beam plates",
   h: "heater",
@@ -71,6 +76,29 @@ export const PIN_ELEMENT_NAMES: Readonly<Record<PinElement, string>> = {
   ic: "internal connection",
   nc: "no connection",
 };
+
+/**
+ * A heptode (pentagrid converter) numbers five grids outward from the cathode, and the same
+ * number does a different job than in a pentode: g1 oscillator grid, g2 and g4 the screen,
+ * g3 the signal grid, g5 the suppressor.
+ */
+const HEPTODE_ELEMENT_NAMES: Readonly<Partial<Record<PinElement, string>>> = {
+  g1: "oscillator grid",
+  g2: "screen grid (g2)",
+  g3: "signal grid",
+  g4: "screen grid (g4)",
+  g5: "suppressor grid",
+};
+
+/**
+ * The name of an element as it serves in a section of `kind`.
+ *
+ * Example: `elementName("g3", "heptode")` → "signal grid"; `elementName("g3", "pentode")` → "suppressor grid".
+ */
+export function elementName(element: PinElement, kind?: SectionKind): string {
+  if (kind === "heptode") return HEPTODE_ELEMENT_NAMES[element] ?? PIN_ELEMENT_NAMES[element];
+  return PIN_ELEMENT_NAMES[element];
+}
 
 export interface PinAssignment {
   /** Pin label as printed on the basing diagram: "1".."9", or a lead name on wire-ended types. */
@@ -84,6 +112,9 @@ export type SectionKind =
   | "triode"
   | "pentode"
   | "beam-tetrode"
+  // Pentagrid converter: g1 oscillator grid, g2+g4 screen, g3 signal grid, g5 suppressor.
+  // Converters that use g2 as the oscillator anode are a different structure and not this kind.
+  | "heptode"
   | "diode"
   | "rectifier"
   | "thyratron"
@@ -103,13 +134,35 @@ export interface OperatingPoint {
   cathodeResistorOhms?: number;
 }
 
+/** A cold-cathode glow regulator's discharge, as the datasheet states it. */
+export interface GlowDischarge {
+  /** Voltage across the tube while it regulates, at the middle of its current range. */
+  operatingVolts: number;
+  /** Supply voltage the tube needs before it fires (the worst case the datasheet states). */
+  strikingVolts: number;
+  /** Current range over which it regulates. */
+  minMilliamps: number;
+  maxMilliamps: number;
+}
+
 export interface SectionSpec {
   index: number;
   kind: SectionKind;
+  /**
+   * A name that makes the section unique and not interchangeable with its siblings, such as a
+   * display segment ("segment a"). Labelled sections only ever stand in for a section of the
+   * same label; unlabelled sections of one kind may be swapped.
+   */
+  label?: string;
   typical: OperatingPoint[];
+  /** Ratings of this section where they differ from the envelope's (a triode-pentode's triode). */
+  maxRatings?: MaxRatings;
+  /** Regulator sections: the glow discharge. */
+  glow?: GlowDischarge;
 }
 
 export interface HeaterSpec {
+  /** 0 with amps 0 and `coldCathode` true on types that have no heater at all. */
   volts: number;
   amps: number;
   /** Centre-tapped heaters can run at `volts` (ends) or at `half.volts` (halves in parallel, tap to one side). */
@@ -117,6 +170,8 @@ export interface HeaterSpec {
   /** Controlled warm-up time for series strings, seconds. */
   warmUpSeconds?: number;
   directlyHeated?: boolean;
+  /** No heater: glow regulators and cold-cathode thyratrons (volts and amps are then 0). */
+  coldCathode?: boolean;
 }
 
 export interface MaxRatings {
@@ -128,6 +183,23 @@ export interface MaxRatings {
   heaterCathodeVolts?: number;
   peakInverseVolts?: number; // rectifiers
   outputMilliamps?: number; // rectifiers and regulators
+}
+
+/**
+ * The maximum ratings that bind one section: the section's own where it has them, over the
+ * envelope's. Returns the envelope's ratings for an unknown section.
+ *
+ * Example: 6BM8 section 1 (triode, own plateWatts 1) → { plateVolts: 600, plateWatts: 1, … } when
+ * the envelope says { plateVolts: 600, plateWatts: 7 }.
+ */
+export function sectionMaxRatings(spec: TubeTypeSpec, sectionIndex: number): MaxRatings {
+  const own = spec.sections.find((section) => section.index === sectionIndex)?.maxRatings;
+  return own === undefined ? spec.maxRatings : { ...spec.maxRatings, ...own };
+}
+
+/** True when the type has no heater (glow regulators, cold-cathode thyratrons). */
+export function hasNoHeater(spec: TubeTypeSpec): boolean {
+  return spec.heater.coldCathode === true || (spec.heater.volts === 0 && spec.heater.amps === 0);
 }
 
 export interface TubeTypeSpec {
