@@ -47,7 +47,15 @@ export const MAX_RATING_FIELDS = [
 /** One section row's fields: s1Kind, s1PlateVolts, … */
 export const TYPICAL_FIELDS = ["PlateVolts", "GridVolts", "ScreenVolts", "PlateMilliamps", "ScreenMilliamps", "Gm", "Mu", "Rp"] as const;
 export type TypicalField = (typeof TYPICAL_FIELDS)[number];
-export const typicalFieldName = (section: number, field: TypicalField | "Kind") => `s${section}${field}`;
+export const typicalFieldName = (section: number, field: TypicalField | "Kind" | "Label") => `s${section}${field}`;
+
+/** The glow discharge of the type's regulator section (regulators have one section). */
+export const GLOW_FIELDS = [
+  { field: "glowOperatingVolts", key: "operatingVolts", label: "Glow operating volts", short: "Holds V", dimension: "volts" },
+  { field: "glowStrikingVolts", key: "strikingVolts", label: "Glow striking volts", short: "Strikes at V", dimension: "volts" },
+  { field: "glowMinMilliamps", key: "minMilliamps", label: "Glow minimum mA", short: "From mA", dimension: "milliamps" },
+  { field: "glowMaxMilliamps", key: "maxMilliamps", label: "Glow maximum mA", short: "To mA", dimension: "milliamps" },
+] as const;
 
 const upperText = (label: string, max: number) => optionalField(label, max).transform((value) => value?.toUpperCase());
 
@@ -76,6 +84,7 @@ function sectionShape() {
   for (let section = 1; section <= TYPE_FORM_SECTIONS; section += 1) {
     const name = (field: TypicalField | "Kind") => typicalFieldName(section, field);
     shape[name("Kind")] = z.preprocess(blankAsAbsent, z.enum(SECTION_KINDS, { error: `Section ${section} kind must be one of ${SECTION_KINDS.join(", ")}` }).optional());
+    shape[typicalFieldName(section, "Label")] = optionalField(`Section ${section} label`, 24).transform((value) => value?.toLowerCase());
     shape[name("PlateVolts")] = quantityField(`Section ${section} plate volts`, "volts", { max: 5000 });
     shape[name("GridVolts")] = quantityField(`Section ${section} grid volts`, "volts", { allowNegative: true, min: -1000, max: 1000 });
     shape[name("ScreenVolts")] = quantityField(`Section ${section} screen volts`, "volts", { max: 5000 });
@@ -85,6 +94,12 @@ function sectionShape() {
     shape[name("Mu")] = numberField(`Section ${section} µ`, { min: 0, max: 10_000, minExclusive: true });
     shape[name("Rp")] = quantityField(`Section ${section} plate resistance`, "ohms", { max: 1e9 });
   }
+  return shape;
+}
+
+function glowShape() {
+  const shape: Record<string, z.ZodType> = {};
+  for (const glow of GLOW_FIELDS) shape[glow.field] = quantityField(glow.label, glow.dimension, { max: 5000 });
   return shape;
 }
 
@@ -109,6 +124,7 @@ const typeFormShape = {
   directlyHeated: checkboxField,
   ...ratingShape(),
   ...sectionShape(),
+  ...glowShape(),
   variantOf: upperText("Variant of", 30),
   notes: optionalField("Notes", 2000),
   source: requiredText("Source", 300),
@@ -134,6 +150,12 @@ export function parseTypeFormFields(input: unknown): { values: Partial<TypeForm>
     const result = (schema as z.ZodType).safeParse(body[field]);
     if (result.success) values[field] = result.data;
     else errors[field] = result.error.issues[0]?.message ?? `${field} is not valid`;
+  }
+  const glowGiven = GLOW_FIELDS.filter((glow) => values[glow.field] !== undefined);
+  if (glowGiven.length > 0) {
+    for (const glow of GLOW_FIELDS) {
+      if (values[glow.field] === undefined && !errors[glow.field]) errors[glow.field] = `${glow.label} is required with the other glow values (a regulator needs all four)`;
+    }
   }
   if (values.heaterVolts === undefined && !errors.heaterVolts) errors.heaterVolts = "Heater volts is required (0 only for a cold-cathode type)";
   if (values.heaterAmps === undefined && !errors.heaterAmps) errors.heaterAmps = "Heater amps is required (0 only for a cold-cathode type)";

@@ -8,7 +8,7 @@
  * evenly spaced pins around a keyed spigot; pin 1 is the first pin clockwise after the key.
  * Wire-ended subminiature types have no base: their leads are drawn as a row.
  */
-import { PIN_ELEMENT_NAMES, type BaseFamily, type PinAssignment, type PinElement, type TubeTypeSpec } from "../engine/tube-types/index.ts";
+import { elementName, type BaseFamily, type PinAssignment, type PinElement, type TubeTypeSpec } from "../engine/tube-types/index.ts";
 
 export type PinRole = "electrode" | "heater" | "shield" | "ic" | "nc";
 
@@ -61,8 +61,17 @@ export interface PinDiagram {
   caption: string;
 }
 
-/** The diagram's hover text warns about internal connections. */
-const ELEMENT_NAMES: Readonly<Record<PinElement, string>> = { ...PIN_ELEMENT_NAMES, ic: "internal connection (do not wire)" };
+/**
+ * The diagram's hover text names an element by its work in its section (a heptode's g3 is the
+ * signal grid) and warns about internal connections.
+ */
+export function pinElementName(spec: TubeTypeSpec, assignment: PinAssignment): string {
+  if (assignment.element === "ic") return "internal connection (do not wire)";
+  const sectionIndex = assignment.section ?? (spec.sections.length === 1 ? 1 : undefined);
+  const section = spec.sections.find((entry) => entry.index === sectionIndex);
+  const name = elementName(assignment.element, section?.kind);
+  return section?.label !== undefined && assignment.section !== undefined ? `${name}, ${section.label}` : name;
+}
 
 /**
  * Pin positions around each base family: how many positions the circle has, how many pins,
@@ -100,9 +109,9 @@ function elementText(element: PinElement): string {
   return element === "ic" || element === "nc" ? element.toUpperCase() : element;
 }
 
-function describePin(assignment: PinAssignment): string {
+function describePin(spec: TubeTypeSpec, assignment: PinAssignment): string {
   const section = assignment.section !== undefined ? `, section ${assignment.section}` : "";
-  return `${assignment.pin === "cap" ? "top cap" : `pin ${assignment.pin}`}: ${ELEMENT_NAMES[assignment.element]}${section}`;
+  return `${assignment.pin === "cap" ? "top cap" : `pin ${assignment.pin}`}: ${pinElementName(spec, assignment)}${section}`;
 }
 
 function round(value: number): number {
@@ -130,7 +139,8 @@ function basePin(assignment: PinAssignment, x: number, y: number, labelX: number
     labelAnchor,
     elementText: elementText(assignment.element),
     sectionText: showSection && assignment.section !== undefined ? String(assignment.section) : "",
-    description: describePin(assignment),
+    // Named by its work in its section once the whole type is known (see layoutPinDiagram).
+    description: "",
   };
 }
 
@@ -191,6 +201,15 @@ function layRow(spec: TubeTypeSpec, pins: readonly PinAssignment[], caption: str
  * bottom, pins 1 and 9 mirror images about the vertical axis.
  */
 export function layoutPinDiagram(spec: TubeTypeSpec): PinDiagram {
+  const diagram = layoutPins(spec);
+  const describe = (pin: DiagramPin): DiagramPin => {
+    const assignment = spec.pins.find((entry) => entry.pin === pin.pin);
+    return assignment === undefined ? pin : { ...pin, description: describePin(spec, assignment) };
+  };
+  return { ...diagram, pins: diagram.pins.map(describe), extras: diagram.extras.map(describe), cap: diagram.cap === null ? null : describe(diagram.cap) };
+}
+
+function layoutPins(spec: TubeTypeSpec): PinDiagram {
   const capPin = spec.pins.find((assignment) => assignment.pin === "cap");
   // A single-section type needs no section numbers on its labels.
   const multi = spec.sections.length > 1;

@@ -3,10 +3,10 @@
  * paths back to the form's fields, so that every message lands beside the field it is about.
  * Pure: no IO.
  */
-import type { HeaterSpec, MaxRatings, OperatingPoint, PinAssignment, PinElement, SectionSpec, TubeTypeSpec } from "../engine/tube-types/index.ts";
+import type { GlowDischarge, HeaterSpec, MaxRatings, OperatingPoint, PinAssignment, PinElement, SectionSpec, TubeTypeSpec } from "../engine/tube-types/index.ts";
 import type { FieldErrors } from "../schemas/form-parsing.ts";
 import { PIN_ELEMENTS } from "../schemas/tube-type-schema.ts";
-import { MAX_RATING_FIELDS, TYPE_FORM_SECTIONS, TYPICAL_FIELDS, typicalFieldName, type TypeForm, type TypicalField } from "../schemas/type-form-schemas.ts";
+import { GLOW_FIELDS, MAX_RATING_FIELDS, TYPE_FORM_SECTIONS, TYPICAL_FIELDS, typicalFieldName, type TypeForm, type TypicalField } from "../schemas/type-form-schemas.ts";
 
 // ── Pins ──────────────────────────────────────────────────────────────────────────────────
 
@@ -137,7 +137,15 @@ export function typeFormToSpec(form: Partial<TypeForm>, fieldErrors: FieldErrors
       // A field of the row that did not parse leaves the point out, like an incomplete one.
       if (complete && !TYPICAL_FIELDS.some((field) => errors[typicalFieldName(section, field)] !== undefined)) typical.push(point as unknown as OperatingPoint);
     }
-    sections.push({ index: section, kind, typical });
+    const label = record[typicalFieldName(section, "Label")] as string | undefined;
+    sections.push({ index: section, kind, ...(label !== undefined ? { label } : {}), typical });
+  }
+  const glowValues = GLOW_FIELDS.map((glow) => record[glow.field] as number | undefined);
+  if (glowValues.every((value) => value !== undefined)) {
+    const glow = Object.fromEntries(GLOW_FIELDS.map((entry, position) => [entry.key, glowValues[position]])) as unknown as GlowDischarge;
+    const regulator = sections.find((section) => section.kind === "regulator");
+    if (regulator === undefined) errors.glowOperatingVolts ??= "Glow values belong to a regulator: set a section's kind to regulator, or clear them";
+    else regulator.glow = glow;
   }
   if (sections.length === 0 && !errors[typicalFieldName(1, "Kind")]) errors[typicalFieldName(1, "Kind")] = "Section 1 kind: a type needs at least one section";
   const { designation, class: tubeClass, base } = form;
@@ -153,6 +161,8 @@ export function typeFormToSpec(form: Partial<TypeForm>, fieldErrors: FieldErrors
   }
   if (form.warmUpSeconds !== undefined) heater.warmUpSeconds = form.warmUpSeconds;
   if (form.directlyHeated) heater.directlyHeated = true;
+  // 0 V and 0 A is how the form says "no heater".
+  if (heater.volts === 0 && heater.amps === 0) heater.coldCathode = true;
 
   const maxRatings: MaxRatings = {};
   for (const rating of MAX_RATING_FIELDS) {
@@ -163,7 +173,7 @@ export function typeFormToSpec(form: Partial<TypeForm>, fieldErrors: FieldErrors
   const aliases = (form.aliases ?? "").split(/[\s,;]+/).filter((alias) => alias !== "");
   const sources: Record<string, string> = { pins: source, heater: source };
   if (Object.keys(maxRatings).length > 0) sources.maxRatings = source;
-  if (sections.some((section) => section.typical.length > 0)) sources.sections = source;
+  if (sections.some((section) => section.typical.length > 0 || section.glow !== undefined)) sources.sections = source;
   if (aliases.length > 0) sources.aliases = source;
 
   const spec: TubeTypeSpec = {
@@ -190,6 +200,7 @@ const HEATER_FIELDS: Record<string, string> = {
   amps: "heaterAmps",
   warmUpSeconds: "warmUpSeconds",
   directlyHeated: "directlyHeated",
+  coldCathode: "heaterVolts",
 };
 
 const TYPICAL_FIELD_OF_KEY = Object.fromEntries(Object.entries(TYPICAL_KEYS).map(([field, key]) => [key, field])) as Record<string, TypicalField>;
@@ -233,6 +244,8 @@ function fieldForSpecPath(path: string, pinLineNumbers: readonly number[]): { fi
     case "sections": {
       const section = parts[1] !== undefined ? Number(parts[1]) + 1 : 1;
       if (parts[2] === "kind" || parts[2] === "index" || parts[2] === undefined) return { field: typicalFieldName(section, "Kind"), prefix: `Section ${section}: ` };
+      if (parts[2] === "label") return { field: typicalFieldName(section, "Label"), prefix: `Section ${section}: ` };
+      if (parts[2] === "glow") return { field: GLOW_FIELDS.find((entry) => entry.key === parts[3])?.field ?? "glowOperatingVolts", prefix: "Glow discharge: " };
       const field = TYPICAL_FIELD_OF_KEY[parts[4] ?? ""] ?? "PlateVolts";
       return { field: typicalFieldName(section, field), prefix: `Section ${section}: ` };
     }

@@ -26,11 +26,16 @@ function addError(errors: FieldErrors, path: string, message: string): void {
  * Which field of the spec a library consistency message is about, as a spec path.
  *
  * Example: `consistencyPath("section 2 (triode) lacks k")` → "pins";
- * `consistencyPath("section 1 typical point 0 has 400 V on the plate, above the maximum 300 V")` → "sections.0.typical".
+ * `consistencyPath("section 1 typical point 0 has 400 V on the plate, above the maximum 300 V")` → "sections.0.typical";
+ * `consistencyPath("section 1 (regulator) needs glow data: …")` → "sections.0.glow".
  */
 export function consistencyPath(message: string): string {
   const typical = /^section ([0-9]+) typical point/.exec(message);
   if (typical) return `sections.${Number(typical[1]) - 1}.typical`;
+  const glow = /^section ([0-9]+) (?:\(regulator\) needs glow data|regulates up to)/.exec(message);
+  if (glow) return `sections.${Number(glow[1]) - 1}.glow`;
+  const label = /^section ([0-9]+) needs a label/.exec(message);
+  if (label) return `sections.${Number(label[1]) - 1}.label`;
   if (/^designation /.test(message)) return "designation";
   if (/\balias/.test(message)) return "aliases";
   if (/variantOf/.test(message)) return "variantOf";

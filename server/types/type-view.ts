@@ -3,11 +3,10 @@
  * points, sources grouped by document, stock counts with their links, and the pin diagram.
  * Pure: no IO; the route hands in the catalog entries and the stock summary.
  */
-import type { TubeTypeSpec } from "../engine/tube-types/index.ts";
+import { hasNoHeater, type MaxRatings, type SectionSpec, type TubeTypeSpec } from "../engine/tube-types/index.ts";
 import type { TypeListQuery } from "../schemas/type-form-schemas.ts";
-import { PIN_ELEMENT_NAMES } from "../schemas/tube-type-schema.ts";
 import { displayNumber, displayOhms, goodStockHref, typeHref } from "../substitutes/substitute-view.ts";
-import { layoutPinDiagram, type PinDiagram } from "./pin-diagram.ts";
+import { layoutPinDiagram, pinElementName, type PinDiagram } from "./pin-diagram.ts";
 
 export interface TypeEntryLike {
   designation: string;
@@ -30,7 +29,7 @@ export interface StockSummaryRow {
  */
 export function describeHeater(spec: TubeTypeSpec): string {
   const heater = spec.heater;
-  if (heater.volts === 0 && heater.amps === 0) return "none (cold cathode)";
+  if (hasNoHeater(spec)) return "none (cold cathode)";
   const parts = [`${displayNumber(heater.volts)} V, ${displayNumber(heater.amps)} A`];
   if (heater.centreTap) parts.push(` — or ${displayNumber(heater.centreTap.half.volts)} V, ${displayNumber(heater.centreTap.half.amps)} A with the two halves in parallel (centre tap)`);
   if (heater.directlyHeated) parts.push("; directly heated filament");
@@ -41,7 +40,7 @@ export function describeHeater(spec: TubeTypeSpec): string {
 /** Short form for tables: "12.6 V 0.15 A (6.3 V 0.3 A)". */
 export function shortHeater(spec: TubeTypeSpec): string {
   const heater = spec.heater;
-  if (heater.volts === 0 && heater.amps === 0) return "cold cathode";
+  if (hasNoHeater(spec)) return "cold cathode";
   const half = heater.centreTap ? ` (${displayNumber(heater.centreTap.half.volts)} V ${displayNumber(heater.centreTap.half.amps)} A)` : "";
   return `${displayNumber(heater.volts)} V ${displayNumber(heater.amps)} A${half}`;
 }
@@ -128,6 +127,8 @@ export function sourceKeyLabel(key: string): string {
       return "basing code";
     case "sections":
       if (parts[1] === undefined) return "typical points";
+      if (parts[2] === "glow") return `section ${parts[1]} glow discharge`;
+      if (parts[2] === "maxRatings") return parts[3] ? `section ${parts[1]} maximum ${(RATING_NAMES[parts[3]]?.name ?? parts[3]).toLowerCase()}` : `section ${parts[1]} maximum ratings`;
       if (parts[3] === undefined) return `section ${parts[1]} typical points`;
       return `section ${parts[1]}, typical point ${Number(parts[3]) + 1}`;
     default:
@@ -150,6 +151,15 @@ export interface TypicalRow {
   cathodeResistor: string;
 }
 
+export interface SectionRow {
+  index: number;
+  kind: string;
+  label: string;
+  /** The section's own ratings, where they differ from the envelope's. */
+  ratings: string;
+  glow: string;
+}
+
 export interface VerdictCount {
   verdict: string;
   count: number;
@@ -170,6 +180,8 @@ export interface TypeDetailView {
   variants: Array<{ designation: string; href: string }>;
   ratings: Array<{ name: string; value: string }>;
   typical: TypicalRow[];
+  /** Shown when any section has a label, its own ratings or glow data. */
+  sections: SectionRow[];
   pins: Array<{ pin: string; element: string; elementName: string; section: string; role: string }>;
   diagram: PinDiagram;
   sources: Array<{ text: string; covers: string }>;
@@ -182,6 +194,28 @@ export interface TypeDetailView {
 }
 
 const SHOWN_VERDICTS = ["good", "worn", "failed", "untested", "not-comparable"] as const;
+
+function ratingRows(ratings: MaxRatings): Array<{ name: string; value: string }> {
+  return Object.entries(ratings)
+    .filter((pair): pair is [string, number] => typeof pair[1] === "number")
+    .map(([key, value]) => ({ name: RATING_NAMES[key]?.name ?? key, value: `${displayNumber(value)} ${RATING_NAMES[key]?.unit ?? ""}`.trim() }));
+}
+
+function sectionRow(section: SectionSpec): SectionRow {
+  const glow = section.glow;
+  return {
+    index: section.index,
+    kind: section.kind,
+    label: section.label ?? "",
+    ratings: ratingRows(section.maxRatings ?? {})
+      .map((rating) => `${rating.name.replace(/, per section$/, "")} ${rating.value}`)
+      .join("; "),
+    glow:
+      glow === undefined
+        ? ""
+        : `holds ${displayNumber(glow.operatingVolts)} V over ${displayNumber(glow.minMilliamps)}–${displayNumber(glow.maxMilliamps)} mA; strikes at ${displayNumber(glow.strikingVolts)} V`,
+  };
+}
 
 function orBlank(value: number | undefined, format: (value: number) => string = (v) => displayNumber(v)): string {
   return value === undefined ? "" : format(value);
@@ -212,13 +246,12 @@ export function typeDetailView(entry: TypeEntryLike, all: readonly TypeEntryLike
     notes: spec.notes ?? null,
     variantOf: spec.variantOf ? { designation: spec.variantOf, href: typeHref(spec.variantOf) } : null,
     variants: all.filter((other) => other.spec.variantOf === entry.designation).map((other) => ({ designation: other.designation, href: typeHref(other.designation) })),
-    ratings: Object.entries(spec.maxRatings)
-      .filter((pair): pair is [string, number] => typeof pair[1] === "number")
-      .map(([key, value]) => ({ name: RATING_NAMES[key]?.name ?? key, value: `${displayNumber(value)} ${RATING_NAMES[key]?.unit ?? ""}`.trim() })),
+    ratings: ratingRows(spec.maxRatings),
+    sections: spec.sections.some((section) => section.label !== undefined || section.maxRatings !== undefined || section.glow !== undefined) ? spec.sections.map(sectionRow) : [],
     typical: spec.sections.flatMap((section) =>
       section.typical.map((point, index) => ({
         section: section.index,
-        kind: section.kind,
+        kind: section.label === undefined ? section.kind : `${section.kind}, ${section.label}`,
         point: index + 1,
         plateVolts: displayNumber(point.plateVolts),
         screenVolts: orBlank(point.screenVolts),
@@ -234,7 +267,7 @@ export function typeDetailView(entry: TypeEntryLike, all: readonly TypeEntryLike
     pins: spec.pins.map((pin) => ({
       pin: pin.pin,
       element: pin.element === "ic" || pin.element === "nc" ? pin.element.toUpperCase() : pin.element,
-      elementName: PIN_ELEMENT_NAMES[pin.element],
+      elementName: pinElementName(spec, pin),
       section: pin.section !== undefined ? String(pin.section) : "",
       role: pin.element === "ic" || pin.element === "nc" ? pin.element : "",
     })),

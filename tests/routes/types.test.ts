@@ -222,6 +222,49 @@ describe("user-added types through the form", () => {
     expect(t.app.catalog.resolve("9QX9")).toBeUndefined();
   });
 
+  it("adds a cold-cathode regulator with its glow discharge, and puts a missing one beside its field", async () => {
+    // Invented regulator "9QR1"; its figures only have to satisfy the library rules.
+    const regulator: Record<string, string> = {
+      designation: "9QR1",
+      class: "voltage-regulator",
+      base: "B7G",
+      pins: "1=a:1\n2=k:1\n3=nc\n4=nc\n5=nc\n6=nc\n7=nc",
+      heaterVolts: "0",
+      heaterAmps: "0",
+      maxOutputMilliamps: "40",
+      s1Kind: "regulator",
+      glowOperatingVolts: "120",
+      glowStrikingVolts: "150 V",
+      glowMinMilliamps: "5",
+      glowMaxMilliamps: "40 mA",
+      source: "entered by owner for a test",
+    };
+    const cases: Array<[Record<string, string>, string, string]> = [
+      [{ ...regulator, glowStrikingVolts: "" }, "glowStrikingVolts", "Glow striking volts is required with the other glow values"],
+      [{ ...regulator, glowStrikingVolts: "", glowOperatingVolts: "", glowMinMilliamps: "", glowMaxMilliamps: "" }, "glowOperatingVolts", "needs glow data: operating and striking volts, current range"],
+      [{ ...regulator, glowStrikingVolts: "100" }, "glowStrikingVolts", "glow striking volts must be at least the operating volts"],
+      [{ ...regulator, maxOutputMilliamps: "30" }, "glowOperatingVolts", "regulates up to 40 mA, above the maximum output 30 mA"],
+      [{ ...regulator, s1Kind: "triode", pins: "1=a:1\n2=k:1\n3=h\n4=h\n5=g1:1\n6=nc\n7=nc", heaterVolts: "6.3", heaterAmps: "0.3" }, "glowOperatingVolts", "Glow values belong to a regulator"],
+      [{ ...regulator, s1Label: "Main Gap!" }, "s1Label", "Section 1: section label must be lower-case letters"],
+    ];
+    for (const [fields, field, text] of cases) {
+      const response = await postForm(t.app, "/types/new", fields, { from: "/types/new", htmx: true });
+      expect(response.statusCode, `${field}: ${text}`).toBe(422);
+      const message = new RegExp(`id="${field}-error" role="alert">([^<]*)<`).exec(decoded(response.body))?.[1] ?? "";
+      expect(message, field).toContain(text);
+    }
+    expect(t.app.catalog.resolve("9QR1")).toBeUndefined();
+
+    const saved = await postForm(t.app, "/types/new", regulator, { from: "/types/new" });
+    expect(saved.statusCode, saved.body.slice(0, 400)).toBe(303);
+    const api = (await t.app.inject({ url: "/api/types/9QR1" })).json();
+    expect(api.heater).toEqual({ volts: 0, amps: 0, coldCathode: true });
+    expect(api.sections[0].glow).toEqual({ operatingVolts: 120, strikingVolts: 150, minMilliamps: 5, maxMilliamps: 40 });
+    const page = decoded((await t.app.inject({ url: "/types/9QR1" })).body);
+    expect(page).toContain("none (cold cathode)");
+    expect(page).toContain("holds 120 V over 5–40 mA; strikes at 150 V");
+  });
+
   it("shows the empty form with the pin-line hint", async () => {
     const response = await t.app.inject({ url: "/types/new" });
     expect(response.statusCode).toBe(200);

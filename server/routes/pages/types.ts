@@ -6,7 +6,7 @@
 import type { FastifyInstance } from "fastify";
 import { parseWith, type FieldErrors } from "../../schemas/form-parsing.ts";
 import { BASE_FAMILIES, PIN_ELEMENTS, SECTION_KINDS, TUBE_CLASSES } from "../../schemas/tube-type-schema.ts";
-import { MAX_RATING_FIELDS, TYPE_FORM_SECTIONS, parseTypeFormFields, typeListQuerySchema } from "../../schemas/type-form-schemas.ts";
+import { GLOW_FIELDS, MAX_RATING_FIELDS, TYPE_FORM_SECTIONS, parseTypeFormFields, typeListQuerySchema } from "../../schemas/type-form-schemas.ts";
 import { formErrorsFromSpecErrors, typeFormToSpec } from "../../types/type-form.ts";
 import { checkNewType, designationClash } from "../../types/type-validation.ts";
 import { typeDetailView, typeListRows } from "../../types/type-view.ts";
@@ -25,6 +25,7 @@ export default async function typePages(app: FastifyInstance) {
     sectionKinds: SECTION_KINDS,
     pinElements: PIN_ELEMENTS,
     ratingFields: MAX_RATING_FIELDS,
+    glowFields: GLOW_FIELDS,
     sectionCount: TYPE_FORM_SECTIONS,
     designations: app.catalog.list().map((entry) => entry.designation),
   });
