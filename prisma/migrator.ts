@@ -16,7 +16,12 @@ const prismaDir = path.dirname(fileURLToPath(import.meta.url));
 export const schemaPath = path.join(prismaDir, "schema.prisma");
 export const migrationsDir = path.join(prismaDir, "migrations");
 const lockfileContent = 'provider = "sqlite"\n';
-const noFilters = { externalTables: [], externalEnums: [] };
+/**
+ * Tables the migrations create by hand and schema.prisma does not model: the trigram label
+ * search (an FTS5 table and the shadow tables SQLite keeps for it). Diffs leave them alone.
+ */
+export const EXTERNAL_TABLES = ["TubeLabelSearch", "TubeLabelSearch_data", "TubeLabelSearch_idx", "TubeLabelSearch_docsize", "TubeLabelSearch_config"];
+const schemaFilters = { externalTables: EXTERNAL_TABLES, externalEnums: [] };
 
 /** `file:./data/x.db` or a plain path → an absolute file path (":memory:" passes through). */
 export function databaseFileFromUrl(url: string): string {
@@ -117,7 +122,7 @@ async function diffMigrationsToSchema(exitCode: boolean) {
     to: { tag: "schemaDatamodel", files: [{ path: schemaPath, content: schema }] },
     script: true,
     exitCode,
-    filters: noFilters,
+    filters: schemaFilters,
   } as never).finally(close);
   return result as { exitCode: number; stdout: string };
 }
@@ -146,7 +151,7 @@ export async function applyMigrations(databaseUrl: string): Promise<string[]> {
   const databaseFile = databaseFileFromUrl(databaseUrl);
   if (databaseFile !== ":memory:") fs.mkdirSync(path.dirname(databaseFile), { recursive: true });
   const { engine, close } = await openEngine(databaseFile);
-  const output = (await engine.applyMigrations({ migrationsList: readMigrationList(), filters: noFilters } as never).finally(close)) as {
+  const output = (await engine.applyMigrations({ migrationsList: readMigrationList(), filters: schemaFilters } as never).finally(close)) as {
     appliedMigrationNames: string[];
   };
   return output.appliedMigrationNames;

@@ -5,6 +5,9 @@ import type { TypeCatalog } from "../types/type-catalog.ts";
 import type { TubeInput, TubeListQuery } from "../schemas/tube-schemas.ts";
 import type { FieldErrors } from "../schemas/form-parsing.ts";
 
+/** The trigram index matches strings of three characters or more; shorter searches scan the labels. */
+export const LABEL_SEARCH_TRIGRAM = 3;
+
 export type ServiceResult<T> = { ok: true; value: T } | { ok: false; errors: FieldErrors; status?: number };
 
 export interface TubeRow {
@@ -54,7 +57,8 @@ export class StockService {
   ) {}
 
   /**
-   * One page of the stock list and the number of matches. The stock page is the hottest path
+   * One page of the stock list and the number of matches. Searches of three characters or more
+   * go through the trigram label index (TubeLabelSearch, created by a migration); shorter ones scan. The stock page is the hottest path
    * (20,000 tubes, many clients), so it is plain SQL on the raw connection, and the filters
    * map onto the Tube indexes.
    */
@@ -65,8 +69,9 @@ export class StockService {
       conditions.push("t.typeId = ?");
       values.push(this.catalog.resolve(query.type)?.id ?? -1);
     }
-    if (query.state === "active") conditions.push("t.state <> 'retired'");
-    else if (query.state) {
+    // "active" is counted as all minus retired below: a not-equal test cannot seek the state index.
+    const active = query.state === "active";
+    if (query.state && !active) {
       conditions.push("t.state = ?");
       values.push(query.state);
     }
@@ -78,13 +83,22 @@ export class StockService {
       conditions.push("t.verdict = ?");
       values.push(query.verdict);
     }
-    if (query.q) {
+    if (query.q && [...query.q].length >= LABEL_SEARCH_TRIGRAM) {
+      // The trigram index answers "contains" (case-insensitive, like LIKE) without reading every label.
+      conditions.push(`t.id IN (SELECT rowid FROM TubeLabelSearch WHERE TubeLabelSearch MATCH ?)`);
+      values.push(`"${query.q.replace(/"/g, '""')}"`);
+    } else if (query.q) {
       conditions.push("t.label LIKE ? ESCAPE '\\'");
       values.push(`%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`);
     }
-    const where = conditions.length ? `WHERE ${conditions.join(" AND ")}` : "";
+    const whereOf = (extra: string[]) => {
+      const all = [...conditions, ...extra];
+      return all.length ? `WHERE ${all.join(" AND ")}` : "";
+    };
+    const count = (where: string) => (this.statement(`SELECT COUNT(*) AS n FROM Tube t ${where}`).get(...values) as { n: number }).n;
     // Two statements: a window-function total would materialise every match before the LIMIT.
-    const total = (this.statement(`SELECT COUNT(*) AS n FROM Tube t ${where}`).get(...values) as { n: number }).n;
+    const total = active ? count(whereOf([])) - count(whereOf(["t.state = 'retired'"])) : count(whereOf([]));
+    const where = whereOf(active ? ["t.state <> 'retired'"] : []);
     const rows = this
       .statement(
         `SELECT t.id, t.label, t.maker, t.dateCode, t.location, t.state, t.notes, t.verdict, t.percent, tt.designation

@@ -11,6 +11,7 @@ import Database from "better-sqlite3";
 import { parse } from "csv-parse/sync";
 import { makeTestApp } from "../helpers/app.ts";
 import { BACKUP_TABLES, columnNames } from "../../server/backup/backup-format.ts";
+import { EXTERNAL_TABLES } from "../../prisma/migrator.ts";
 import { defaultBackupPath, formatBytes } from "../../server/backup/online-copy.ts";
 import { sqlTimestamp } from "../../server/db/sql-time.ts";
 
@@ -94,7 +95,8 @@ describe("backup format", () => {
         expect(columnNames(layout), layout.name).toEqual(columns);
       }
       const tables = (test.app.sqlite.prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' AND name NOT LIKE '\\_prisma%' ESCAPE '\\'").all() as Array<{ name: string }>).map((t) => t.name);
-      expect(tables.sort()).toEqual(BACKUP_TABLES.map((layout) => layout.name).sort());
+      // The label search index is derived from Tube by triggers, so a backup leaves it out.
+      expect(tables.filter((name) => !EXTERNAL_TABLES.includes(name)).sort()).toEqual(BACKUP_TABLES.map((layout) => layout.name).sort());
     } finally {
       await test.close();
     }

@@ -83,6 +83,19 @@ describe("stock pages", () => {
     // % and _ in a search are literal characters, not SQL wildcards.
     expect((await t.app.inject({ url: "/api/tubes?q=F-0_1" })).json().total).toBe(0);
     expect((await t.app.inject({ url: "/api/tubes?q=f-05" })).json().total).toBe(10); // F-050 … F-059, any case
+    // The label index follows renames and deletions, and quotes in a search are plain characters.
+    const renamed = await t.app.db.tube.findUniqueOrThrow({ where: { label: "F-059" } });
+    await t.app.db.tube.update({ where: { id: renamed.id }, data: { label: "F-059-\"odd\"" } });
+    expect((await t.app.inject({ url: `/api/tubes?q=${encodeURIComponent('-"odd"')}` })).json().tubes.map((tube: { label: string }) => tube.label)).toEqual(['F-059-"odd"']);
+    expect((await t.app.inject({ url: "/api/tubes?q=f-05" })).json().total).toBe(10);
+    await t.app.db.tube.update({ where: { id: renamed.id }, data: { label: "F-059" } });
+    expect((await t.app.inject({ url: `/api/tubes?q=${encodeURIComponent('"odd"')}` })).json().total).toBe(0);
+    expect((await t.app.inject({ url: "/api/tubes?q=F" })).json().total).toBe(60); // one character: the plain scan
+    // "active" leaves retired tubes out, counted as all minus retired.
+    await t.app.db.tube.update({ where: { id: renamed.id }, data: { state: "retired" } });
+    const active = (await t.app.inject({ url: "/api/tubes?q=F-&state=active&pageSize=100" })).json();
+    expect([active.total, active.tubes.length]).toEqual([59, 59]);
+    await t.app.db.tube.update({ where: { id: renamed.id }, data: { state: "stock" } });
     const badQuery = await t.app.inject({ url: "/api/tubes?verdict=shiny" });
     expect(badQuery.statusCode).toBe(400);
     expect(badQuery.json().fields.verdict).toBeDefined();
