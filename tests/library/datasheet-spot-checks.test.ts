@@ -216,3 +216,90 @@ describe("aliases", () => {
     expect(type("6267").designation).toBe("EF86"); // Wikipedia EF86 article
   });
 });
+
+describe("subminiature and vacuum-fluorescent types", () => {
+  // Vukolov & Mikhailov, "Znakosintezirujushchie indikatory", Radio i svyaz 1987 (OCR copy read 2026) is "the handbook" below.
+  const SEGMENT_LEADS = ["seg-a", "seg-b", "seg-c", "seg-d", "seg-e", "seg-f", "seg-g", "dot"];
+  const SEGMENT_LABELS = ["segment a", "segment b", "segment c", "segment d", "segment e", "segment f", "segment g", "dot"];
+
+  it("IV-6: 1.0 V 50 mA filament, 30 V static limit on the anodes", () => {
+    const spec = type("IV-6");
+    expect(spec.heater.volts).toBeCloseTo(1.0, 6); // the handbook p. 187; IV-6 translated data sheet (MagicSmokeBlog/TranslatedDatasheets)
+    expect(spec.heater.amps).toBeCloseTo(0.05, 6); // the handbook p. 187: 50 ± 5 mA; same in the translated data sheet
+    expect(spec.heater.directlyHeated).toBe(true); // the handbook: filament (накал) on a vacuum-fluorescent numeral
+    expect(spec.maxRatings.plateVolts).toBe(30); // the handbook p. 187, static mode: anode-segment at most 30 V
+  });
+
+  it("IV-3 and IV-3A: 0.85 V filament, 50 mA and 30 mA, 30 V static limit", () => {
+    expect(type("IV-3").heater.volts).toBeCloseTo(0.85, 6); // the handbook p. 185
+    expect(type("IV-3").heater.amps).toBeCloseTo(0.05, 6); // the handbook p. 185: IV-3 50 ± 10 mA
+    expect(type("IV-3A").heater.volts).toBeCloseTo(0.85, 6); // the handbook p. 185
+    expect(type("IV-3A").heater.amps).toBeCloseTo(0.03, 6); // the handbook p. 185: IV-3A 30 ± 10 mA
+    expect(type("IV-3").maxRatings.plateVolts).toBe(30); // the handbook p. 185, static mode
+    expect(type("IV-3A").maxRatings.plateVolts).toBe(30); // the handbook p. 185, static mode (one table for both)
+  });
+
+  it("IV-3 typical point: 20 V grid, total anode current shared over eight anodes", () => {
+    const point = type("IV-3").sections[0].typical[0];
+    expect(point.gridVolts).toBe(20); // the handbook p. 185: grid 20 V
+    expect(point.plateMilliamps).toBeCloseTo(0.8 / 8, 6); // the handbook p. 185: 0.8 mA total for all anode-segments, over 7 segments + dot
+    expect(point.plateMilliamps).toBeLessThanOrEqual(0.3); // the handbook p. 185: at most 0.3 mA per segment (static)
+  });
+
+  it("seven-segment numerals: one labelled indicator per segment and the dot, each on its own anode lead", () => {
+    for (const name of ["IV-3", "IV-3A", "IV-6"]) {
+      const spec = type(name);
+      // the handbook pp. 183-187: seven segments and a decimal point, one grid, one filament
+      expect(spec.sections.map((section) => section.label)).toEqual(SEGMENT_LABELS);
+      expect(spec.pins.filter((pin) => pin.element === "a").map((pin) => [pin.pin, pin.section])).toEqual(SEGMENT_LEADS.map((lead, position) => [lead, position + 1]));
+      expect(spec.pins.filter((pin) => pin.element === "g1")).toEqual([{ pin: "grid", element: "g1" }]);
+      expect(spec.pins.filter((pin) => pin.element === "f").map((pin) => pin.pin)).toEqual(["fil-1", "fil-2"]);
+    }
+  });
+
+  it("DM160: filament, grid and anode on four leads", () => {
+    // classiccmp mailing list, T. Duell, 1999: "4 external connections - the 2 ends of the filament, the anode (plate), and the control grid"
+    expect(elementsInPinOrder("DM160").sort()).toEqual(["a", "f", "f", "g1"]);
+    expect(type("6977").designation).toBe("DM160"); // from memory: EIA number of the same tube
+    expect(type("DM160").class).toBe("vacuum-fluorescent");
+  });
+
+  it("6021 is a twin triode", () => {
+    // RCA 6021 data sheet extract quoted on effectrode.com: "subminiature medium mu twin triode of the heated cathode type having flexible leads"
+    expect(type("6021").class).toBe("dual-triode");
+    expect(type("6021").base).toBe("subminiature");
+  });
+
+  it("wire-ended leads use one vocabulary of function names", () => {
+    // house rule for wire-ended types (lead order varies by maker), not a datasheet value
+    const vocabulary = new Set([
+      "plate", "grid", "cathode", "screen", "suppressor", "heater-1", "heater-2", "fil-1", "fil-2", "shield",
+      "plate-1", "grid-1", "cathode-1", "plate-2", "grid-2", "cathode-2", ...SEGMENT_LEADS,
+    ]);
+    const names = ["5718", "5719", "5840", "5899", "6021", "6111", "6112", "5647", "5896", "5672", "5678", "1AD4", "DM160", "IV-3", "IV-3A", "IV-6"];
+    for (const name of names) {
+      const spec = type(name);
+      expect(spec.base).toBe("subminiature");
+      for (const pin of spec.pins) expect(vocabulary.has(pin.pin), `${name} lead ${pin.pin}`).toBe(true);
+      expect(spec.notes).toContain("Leads named by function; take the lead order from the maker's outline drawing before soldering.");
+    }
+  });
+});
+
+describe("pentagrid converters, per-section ratings and glow regulators", () => {
+  // "the B7G battery thread" below: radiomuseum.org forum, "Common Miniature 7pin (B7G) Battery tubes (valves)",
+  // M. Watterson, 2012 (consulted 2026).
+  it("1R5 is the DK91, a 1.4 V 50 mA directly heated pentagrid converter", () => {
+    expect(type("DK91").designation).toBe("1R5"); // the B7G battery thread: DK91 is essentially the RCA 1R5
+    expect(type("1R5").heater.volts).toBeCloseTo(1.4, 6); // the B7G battery thread: the RCA B7G series at 1.4 V @ 50 mA
+    expect(type("1R5").heater.amps).toBeCloseTo(0.05, 6); // same document; the 1R5-1T4-1S5-3S4 set at physicsmuseum.uq.edu.au (c. 1955) draws 50 mA on its series filaments
+    expect(type("1R5").heater.directlyHeated).toBe(true); // same document: battery filament valves
+    expect(type("1R5").class).toBe("heptode"); // radicalvalves.com "All Dry": the 1R5 is the pentagrid converter of RCA's 1940 B7G line-up
+    expect(type("1R5").sections.map((section) => section.kind)).toEqual(["heptode"]); // same document
+  });
+
+  it("OA2 regulates at 150 V", () => {
+    // hamradioqrp.com, "Voltage regulation, tube style", 2018: "The OA2 regulates voltage to 150 volts"
+    expect(type("OA2").sections[0].glow?.operatingVolts).toBe(150);
+  });
+});
