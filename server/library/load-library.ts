@@ -436,6 +436,7 @@ function sourcedPaths(spec: TubeTypeSpec): string[] {
     section.typical.forEach((_, position) => paths.push(`sections.${section.index}.typical.${position}`));
     for (const key of Object.keys(section.maxRatings ?? {})) paths.push(`sections.${section.index}.maxRatings.${key}`);
     if (section.glow !== undefined) paths.push(`sections.${section.index}.glow`);
+    if (section.cutoff !== undefined) paths.push(`sections.${section.index}.cutoff`);
   }
   if (spec.aliases.length > 0) paths.push("aliases");
   return paths;
@@ -473,6 +474,7 @@ function sourceKeyNamesAValue(spec: TubeTypeSpec, key: string): boolean {
       if (section === undefined) return false;
       if (parts.length === 2) return true;
       if (parts[2] === "glow") return section.glow !== undefined;
+      if (parts[2] === "cutoff") return section.cutoff !== undefined;
       if (parts[2] === "maxRatings") {
         if (section.maxRatings === undefined) return false;
         return parts.length === 3 || (section.maxRatings as Record<string, unknown>)[parts[3]] !== undefined;

@@ -102,7 +102,7 @@ export const BASING_CODE_PATTERN = /^[0-9]{1,2}[A-Z]{1,3}$/;
  * "sections.<section index>.typical.<0-based point>", "aliases". A key covers the fields below it.
  */
 export const SOURCE_KEY_PATTERN =
-  /^(?:pins|heater(?:\.[a-zA-Z]+)?|maxRatings(?:\.[a-zA-Z]+)?|aliases|class|basingCode|sections(?:\.[0-9]+(?:\.typical(?:\.[0-9]+)?|\.maxRatings(?:\.[a-zA-Z]+)?|\.glow)?)?)$/;
+  /^(?:pins|heater(?:\.[a-zA-Z]+)?|maxRatings(?:\.[a-zA-Z]+)?|aliases|class|basingCode|sections(?:\.[0-9]+(?:\.typical(?:\.[0-9]+)?|\.maxRatings(?:\.[a-zA-Z]+)?|\.glow|\.cutoff)?)?)$/;
 
 /** Section labels: short lower-case names such as "segment a" or "dot". */
 export const SECTION_LABEL_PATTERN = /^[a-z0-9][a-z0-9 .-]{0,23}$/;
@@ -198,10 +198,14 @@ export const sectionSpecSchema = z
     kind: z.enum(SECTION_KINDS, { error: `section kind must be one of ${SECTION_KINDS.join(", ")}` }),
     label: z.string({ error: "section label must be text" }).regex(SECTION_LABEL_PATTERN, "section label must be lower-case letters, digits, spaces, dots or dashes, at most 24 characters (e.g. segment a)").optional(),
     typical: z.array(operatingPointSchema, { error: "section typical must be a list of operating points" }),
+    cutoff: z.enum(["sharp", "remote"], { error: 'section cutoff must be "sharp" or "remote"' }).optional(),
     maxRatings: maxRatingsSchema.optional(),
     glow: glowDischargeSchema.optional(),
   })
   .superRefine((section, context) => {
+    if (section.cutoff !== undefined && section.kind !== "pentode" && section.kind !== "heptode") {
+      context.addIssue({ code: "custom", path: ["cutoff"], message: `cutoff describes pentode and heptode sections, not a ${section.kind}` });
+    }
     if (section.glow !== undefined && section.kind !== "regulator") {
       context.addIssue({ code: "custom", path: ["glow"], message: `glow data belong to regulator sections, not to a ${section.kind}` });
     }

@@ -128,6 +128,7 @@ export function sourceKeyLabel(key: string): string {
     case "sections":
       if (parts[1] === undefined) return "typical points";
       if (parts[2] === "glow") return `section ${parts[1]} glow discharge`;
+      if (parts[2] === "cutoff") return `section ${parts[1]} cutoff`;
       if (parts[2] === "maxRatings") return parts[3] ? `section ${parts[1]} maximum ${(RATING_NAMES[parts[3]]?.name ?? parts[3]).toLowerCase()}` : `section ${parts[1]} maximum ratings`;
       if (parts[3] === undefined) return `section ${parts[1]} typical points`;
       return `section ${parts[1]}, typical point ${Number(parts[3]) + 1}`;
@@ -205,7 +206,7 @@ function sectionRow(section: SectionSpec): SectionRow {
   const glow = section.glow;
   return {
     index: section.index,
-    kind: section.kind,
+    kind: section.cutoff === undefined ? section.kind : `${section.kind}, ${section.cutoff} cutoff`,
     label: section.label ?? "",
     ratings: ratingRows(section.maxRatings ?? {})
       .map((rating) => `${rating.name.replace(/, per section$/, "")} ${rating.value}`)
@@ -247,7 +248,9 @@ export function typeDetailView(entry: TypeEntryLike, all: readonly TypeEntryLike
     variantOf: spec.variantOf ? { designation: spec.variantOf, href: typeHref(spec.variantOf) } : null,
     variants: all.filter((other) => other.spec.variantOf === entry.designation).map((other) => ({ designation: other.designation, href: typeHref(other.designation) })),
     ratings: ratingRows(spec.maxRatings),
-    sections: spec.sections.some((section) => section.label !== undefined || section.maxRatings !== undefined || section.glow !== undefined) ? spec.sections.map(sectionRow) : [],
+    sections: spec.sections.some((section) => section.label !== undefined || section.maxRatings !== undefined || section.glow !== undefined || section.cutoff !== undefined)
+      ? spec.sections.map(sectionRow)
+      : [],
     typical: spec.sections.flatMap((section) =>
       section.typical.map((point, index) => ({
         section: section.index,

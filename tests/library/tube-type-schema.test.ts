@@ -106,6 +106,13 @@ describe("tubeTypeSpecSchema", () => {
     expect(messagesFor({ ...validSpec(), sections: [pentodeWithGlow] })).toContain("sections.0.glow: glow data belong to regulator sections, not to a pentode");
   });
 
+  it("takes a cutoff on pentode and heptode sections only", () => {
+    const base = (validSpec().sections as Record<string, unknown>[])[0];
+    expect(messagesFor({ ...validSpec(), sections: [{ ...base, cutoff: "remote" }], sources: { ...(validSpec().sources as object), "sections.1.cutoff": "from memory" } })).toEqual([]);
+    expect(messagesFor({ ...validSpec(), sections: [{ ...base, cutoff: "soft" }] })).toContain('sections.0.cutoff: section cutoff must be "sharp" or "remote"');
+    expect(messagesFor({ ...validSpec(), sections: [{ ...base, kind: "triode", cutoff: "sharp" }] })).toContain("sections.0.cutoff: cutoff describes pentode and heptode sections, not a triode");
+  });
+
   it("refuses a section label used twice in one type", () => {
     const base = (validSpec().sections as Record<string, unknown>[])[0];
     const messages = messagesFor({ ...validSpec(), sections: [{ ...base, label: "segment a" }, { ...base, index: 2, label: "segment a" }] });

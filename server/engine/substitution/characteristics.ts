@@ -21,6 +21,18 @@ export const ASSUMED_PLATE_LOAD_PER_PLATE_RESISTANCE = 2;
 /** Distance charged when neither type states two of gm, µ, rp: three tolerances, i.e. "unknown, treat as far". */
 export const MISSING_DATA_DISTANCE = 3;
 
+/**
+ * A remote-cutoff section for a sharp-cutoff one (or the reverse) adds this to the distance,
+ * as much as a characteristic twice its tolerance away, on top of whatever else is known: the
+ * stage still works, but not as designed (common practice, no source).
+ */
+export const CUTOFF_MISMATCH_DISTANCE = 2;
+
+const CUTOFF_CONSEQUENCE = {
+  remote: "remote-cutoff in place of sharp-cutoff: gain falls gradually with bias instead of at a knee; more distortion on large signals in a fixed-bias stage",
+  sharp: "sharp-cutoff in place of remote-cutoff: a gain-controlled (AGC) stage cuts off abruptly on strong signals and cross-modulates",
+} as const;
+
 export interface CircuitPoint {
   plateVolts: number;
   plateMilliamps: number;
@@ -95,8 +107,18 @@ export function compareCharacteristics(
   const scaledSquares: number[] = [];
   // Identical sections give identical warnings; one line names all of them.
   const outsideToleranceSections = new Map<string, number[]>();
+  let cutoffMismatch = false;
 
   for (const { socketSection, candidateSection } of sectionMapping) {
+    const wantedCutoff = socketType.sections.find((section) => section.index === socketSection)?.cutoff;
+    const offeredCutoff = candidate.sections.find((section) => section.index === candidateSection)?.cutoff;
+    if (wantedCutoff !== undefined && offeredCutoff !== undefined && wantedCutoff !== offeredCutoff) {
+      cutoffMismatch = true;
+      if (describe) {
+        const text = CUTOFF_CONSEQUENCE[offeredCutoff];
+        outsideToleranceSections.set(text, [...(outsideToleranceSections.get(text) ?? []), socketSection]);
+      }
+    }
     const point = circuitPoints.get(socketSection);
     if (point === undefined) continue;
     const socketValues = smallSignalNear(socketType.sections.find((section) => section.index === socketSection), point);
@@ -145,7 +167,8 @@ export function compareCharacteristics(
   const outsideTolerance = [...outsideToleranceSections].map(
     ([text, indexes]) => `${indexes.length === 1 ? "section" : "sections"} ${indexes.join(", ")}: ${text}`,
   );
-  const distance = scaledSquares.length > 0 ? Math.sqrt(scaledSquares.reduce((sum, value) => sum + value, 0) / scaledSquares.length) : MISSING_DATA_DISTANCE;
+  const measuredDistance = scaledSquares.length > 0 ? Math.sqrt(scaledSquares.reduce((sum, value) => sum + value, 0) / scaledSquares.length) : MISSING_DATA_DISTANCE;
+  const distance = measuredDistance + (cutoffMismatch ? CUTOFF_MISMATCH_DISTANCE : 0);
   const worst = sections.reduce<SectionCharacteristics | null>((incumbent, section) => {
     if (incumbent === null) return section;
     const size = (entry: SectionCharacteristics) => (entry.gainChangePercent === null ? -1 : Math.abs(entry.gainChangePercent));

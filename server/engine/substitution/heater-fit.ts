@@ -134,7 +134,7 @@ export function compareHeaters(
     const sameCurrent = ratingMatches(candidateMode.amps, socketMode.amps);
     const currentText = sameCurrent
       ? `, the same current as ${socketType.designation}`
-      : `, ${deltaAmps > 0 ? "drawing" : "saving"} ${formatNumber(Math.abs(deltaAmps))} A ${deltaAmps > 0 ? "more" : "less"} than ${socketType.designation} (${formatNumber(socketMode.amps)} A) from the ${formatNumber(supply.volts)} V winding`;
+      : `, drawing ${formatNumber(Math.abs(deltaAmps))} A ${deltaAmps > 0 ? "more" : "less"} than ${socketType.designation} (${formatNumber(socketMode.amps)} A) from the ${formatNumber(supply.volts)} V winding`;
     const fit = heaterLeadsMove ? "needs-change" : sameCurrent ? "same" : "compatible";
     return { ...base, fit, details: `${runs}${currentText}${movedText}`, heaterCurrentDeltaAmps: sameCurrent ? 0 : deltaAmps };
   }

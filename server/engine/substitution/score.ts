@@ -28,7 +28,8 @@ function pinPoints(fit: PinFitKind, operationCount: number): number {
  *   relation × 10⁹     same type 2, variant 1, other 0
  * + pin fit × 10⁷      direct 99, rewire 60 − 3 per operation (at least 30), adapter 20
  * + heater × 10⁶       same 9, compatible 6, needs change 3
- * + closeness × 10³    round(999 · e^(−distance)), distance = RMS of (delta / tolerance) of gm, µ, rp
+ * + closeness × 10³    round(999 · e^(−distance)), distance = RMS of (delta / tolerance) of gm, µ, rp,
+ *                     plus CUTOFF_MISMATCH_DISTANCE when sharp and remote cutoff meet
  * + headroom × 10      least rating headroom in percent, clamped to 0…99 (0 when unchecked)
  * + stock              good tubes in stock, capped at 9
  *

@@ -155,6 +155,11 @@ export interface SectionSpec {
    */
   label?: string;
   typical: OperatingPoint[];
+  /**
+   * Pentodes: how plate current falls as the grid goes negative — at a knee ("sharp") or
+   * gradually, for gain control ("remote", variable-µ).
+   */
+  cutoff?: "sharp" | "remote";
   /** Ratings of this section where they differ from the envelope's (a triode-pentode's triode). */
   maxRatings?: MaxRatings;
   /** Regulator sections: the glow discharge. */

@@ -210,3 +210,44 @@ describe("heptode grid names", () => {
     expect(describeElement("g3", 1, "heptode")).toBe("signal grid (section 1)");
   });
 });
+
+// ── Cutoff ───────────────────────────────────────────────────────────────────────────────────
+
+describe("sharp and remote cutoff", () => {
+  // 6AU6 is a sharp-cutoff and 6BA6 a remote-cutoff (variable-µ) RF pentode on the same 7BK
+  // basing (RCA receiving tube manuals; from memory). The values below are the ranker's own text.
+  const pentode = (designation: string, cutoff: "sharp" | "remote"): TubeTypeSpec => ({
+    designation,
+    aliases: [],
+    class: "pentode",
+    base: "B7G",
+    pins: [
+      { pin: "1", element: "g1", section: 1 },
+      { pin: "2", element: "g3", section: 1 },
+      { pin: "3", element: "h" },
+      { pin: "4", element: "h" },
+      { pin: "5", element: "a", section: 1 },
+      { pin: "6", element: "g2", section: 1 },
+      { pin: "7", element: "k", section: 1 },
+    ],
+    sections: [{ index: 1, kind: "pentode", cutoff, typical: [] }],
+    heater: { volts: 6.3, amps: 0.3 },
+    maxRatings: {},
+    sources: { pins: "from memory", heater: "from memory", "sections.1.cutoff": "from memory" },
+  });
+  const sharp = pentode("6AU6", "sharp");
+  const remote = pentode("6BA6", "remote");
+
+  it("warns of a remote-cutoff pentode in a sharp-cutoff socket and ranks it below a sharp one", () => {
+    const ranking = rankSubstitutes(socket({ socketType: sharp, heaterSupply: { kind: "parallel", volts: 6.3 } }), [remote, { ...sharp, designation: "TEST-SHARP" }], []);
+    expect(explanationFor(ranking, "6BA6")).toContain(
+      "warning: section 1: remote-cutoff in place of sharp-cutoff: gain falls gradually with bias instead of at a knee; more distortion on large signals in a fixed-bias stage",
+    );
+    expect(ranking.candidates.map((candidate) => candidate.designation)).toEqual(["TEST-SHARP", "6BA6"]);
+  });
+
+  it("warns of a sharp-cutoff pentode in a gain-controlled socket", () => {
+    const ranking = rankSubstitutes(socket({ socketType: remote, heaterSupply: { kind: "parallel", volts: 6.3 } }), [sharp], []);
+    expect(explanationFor(ranking, "6AU6").join("\n")).toMatch(/sharp-cutoff in place of remote-cutoff: a gain-controlled \(AGC\) stage cuts off abruptly/);
+  });
+});
