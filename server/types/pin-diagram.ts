@@ -25,7 +25,11 @@ export interface DiagramPin {
   labelX: number;
   labelY: number;
   labelAnchor: "start" | "middle" | "end";
-  /** "a", "g1", "h", "IC", "NC"… and the section number as a separate small text. */
+  /** Written in the dot: the pin number, or the element on a lead that carries a name. */
+  numberText: string;
+  /** Turn the label a quarter (reading downwards) so long lead names fit side by side. */
+  labelRotated: boolean;
+  /** "a", "g1", "h", "IC", "NC"… (a lead's name on wire-ended types) and the section number as a separate small text. */
   elementText: string;
   sectionText: string;
   /** For the tooltip: "pin 6: plate, section 1". */
@@ -87,6 +91,8 @@ const CIRCLE_BASES: Partial<Record<BaseFamily, { positions: number; pins: number
 };
 
 export const DIAGRAM_SIZE = { width: 420, height: 370 };
+/** Room a turned lead name takes per character, in diagram units (13 px monospace). */
+const ROTATED_LABEL_CHARACTER_WIDTH = 8;
 const PIN_CIRCLE_RADIUS = 100;
 const OUTLINE_MARGIN = 20;
 /** Labels sit outside the base outline, clear of the pin dots. */
@@ -110,8 +116,9 @@ function elementText(element: PinElement): string {
 }
 
 function describePin(spec: TubeTypeSpec, assignment: PinAssignment): string {
-  const section = assignment.section !== undefined ? `, section ${assignment.section}` : "";
-  return `${assignment.pin === "cap" ? "top cap" : `pin ${assignment.pin}`}: ${pinElementName(spec, assignment)}${section}`;
+  const section = assignment.section !== undefined && spec.sections.length > 1 ? `, section ${assignment.section}` : "";
+  const where = assignment.pin === "cap" ? "top cap" : /^[0-9]+$/.test(assignment.pin) ? `pin ${assignment.pin}` : `lead ${assignment.pin}`;
+  return `${where}: ${pinElementName(spec, assignment)}${section}`;
 }
 
 function round(value: number): number {
@@ -134,6 +141,8 @@ function basePin(assignment: PinAssignment, x: number, y: number, labelX: number
     x: round(x),
     y: round(y),
     numberY: round(y + PIN_NUMBER_BASELINE_OFFSET),
+    numberText: assignment.pin,
+    labelRotated: false,
     labelX: round(labelX),
     labelY: round(labelY),
     labelAnchor,
@@ -160,11 +169,18 @@ export function pinAngleDegrees(base: BaseFamily, pinNumber: number, pinCount?: 
 function layRow(spec: TubeTypeSpec, pins: readonly PinAssignment[], caption: string): PinDiagram {
   const multi = spec.sections.length > 1;
   const width = Math.max(DIAGRAM_SIZE.width, ROW_MARGIN * 2 + (pins.length - 1) * ROW_PITCH);
-  const height = 170;
+  const longestName = Math.max(0, ...pins.map((assignment) => (/^[0-9]+$/.test(assignment.pin) ? 0 : assignment.pin.length)));
+  const height = 170 + Math.max(0, longestName - 2) * ROTATED_LABEL_CHARACTER_WIDTH;
   const firstX = (width - (pins.length - 1) * ROW_PITCH) / 2;
   const leadTopY = 40;
   const leadEndY = leadTopY + 60;
-  const placed = pins.map((assignment, index) => basePin(assignment, firstX + index * ROW_PITCH, leadEndY, firstX + index * ROW_PITCH, leadEndY + PIN_RADIUS + 20, "middle", multi));
+  const named = pins.some((assignment) => !/^[0-9]+$/.test(assignment.pin));
+  const placed = pins.map((assignment, index) => {
+    const pin = basePin(assignment, firstX + index * ROW_PITCH, leadEndY, firstX + index * ROW_PITCH, leadEndY + PIN_RADIUS + 20, "middle", multi);
+    // A lead named by its function: the element goes in the dot, the name runs down beneath it.
+    if (!named) return pin;
+    return { ...pin, numberText: pin.elementText, elementText: assignment.pin, sectionText: "", labelRotated: true, labelY: round(leadEndY + PIN_RADIUS + 8), labelAnchor: "start" as const };
+  });
   const bodyLeft = firstX - 22;
   const bodyRight = firstX + Math.max(pins.length - 1, 0) * ROW_PITCH + 22;
   return {
@@ -217,7 +233,10 @@ function layoutPins(spec: TubeTypeSpec): PinDiagram {
   const numbered = bodyPins.every((assignment) => /^[0-9]+$/.test(assignment.pin));
 
   if (spec.base === "subminiature" || !numbered) {
-    const diagram = layRow(spec, bodyPins, "Leads seen from below, in the order listed; the basing diagram of the data sheet shows which lead is which.");
+    const caption = numbered
+      ? "Leads seen from below, in the order listed; the basing diagram of the data sheet shows which lead is which."
+      : "Leads named by what they connect to, drawn in the order listed, not in their physical order: take that from the maker's outline drawing.";
+    const diagram = layRow(spec, bodyPins, caption);
     return capPin ? { ...diagram, cap: basePin(capPin, diagram.width - 30, 24, diagram.width - 30, 24 + PIN_RADIUS + 16, "middle", multi) } : diagram;
   }
 

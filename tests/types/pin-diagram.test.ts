@@ -179,3 +179,33 @@ describe("wire-ended types", () => {
     expect(diagram.layout).toBe("row");
   });
 });
+
+describe("wire-ended leads named by function", () => {
+  it("write the element in the dot and turn the lead's name beneath it", () => {
+    // An invented two-lead-name shape; only the layout is under test.
+    const spec = {
+      designation: "TEST-WIRE",
+      aliases: [],
+      class: "triode",
+      base: "subminiature",
+      pins: [
+        { pin: "plate", element: "a", section: 1 },
+        { pin: "grid", element: "g1", section: 1 },
+        { pin: "cathode", element: "k", section: 1 },
+        { pin: "heater-1", element: "h" },
+        { pin: "heater-2", element: "h" },
+      ],
+      sections: [{ index: 1, kind: "triode", typical: [] }],
+      heater: { volts: 6.3, amps: 0.15 },
+      maxRatings: {},
+      sources: { pins: "from memory", heater: "from memory" },
+    } satisfies TubeTypeSpec;
+    const diagram = layoutPinDiagram(spec);
+    expect(diagram.layout).toBe("row");
+    const plate = diagram.pins.find((entry) => entry.pin === "plate")!;
+    expect(plate).toMatchObject({ numberText: "a", elementText: "plate", labelRotated: true, description: "lead plate: plate" });
+    expect(diagram.caption).toMatch(/not in their physical order/);
+    // "heater-1" is 8 characters: 170 + (8 − 2) × 8 units of height for the turned names.
+    expect(diagram.height).toBe(218);
+  });
+});
