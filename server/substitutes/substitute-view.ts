@@ -60,9 +60,11 @@ export function displayOhms(ohms: number): string {
 /**
  * The heater supply in words.
  *
- * Example: `describeSupply({ kind: "series", milliamps: 150, warmUpSeconds: 11 })` → "a 150 mA series string (11 s warm-up)".
+ * Example: `describeSupply({ kind: "series", milliamps: 150, warmUpSeconds: 11 })` → "a 150 mA series string (11 s warm-up)";
+ * a 0 V parallel supply (a cold-cathode socket) → "no heater supply (cold cathode)".
  */
 export function describeSupply(supply: HeaterSupplyInput): string {
+  if (supply.kind === "parallel" && supply.volts === 0) return "no heater supply (cold cathode)";
   if (supply.kind === "parallel") return `a ${displayNumber(supply.volts)} V parallel heater supply`;
   return `a ${displayNumber(supply.milliamps)} mA series string${supply.warmUpSeconds !== undefined ? ` (${displayNumber(supply.warmUpSeconds)} s warm-up)` : ""}`;
 }
@@ -75,6 +77,7 @@ const RATING_TEXT: Record<string, { name: string; unit: string }> = {
   screenVolts: { name: "screen volts", unit: "V" },
   cathodeMilliamps: { name: "cathode current", unit: "mA" },
   heaterCathodeVolts: { name: "heater–cathode volts", unit: "V" },
+  outputMilliamps: { name: "regulator current", unit: "mA" },
 };
 
 /** Headroom under this many percent is shown as tight (common practice, no source). */

@@ -24,9 +24,10 @@ function glowOf(spec: TubeTypeSpec, section: number): GlowDischarge | undefined 
 /**
  * Compares the glow discharge of every regulator section the socket uses with the substitute
  * section that would serve it. A substitute fails when its operating voltage differs from the
- * socket type's by more than `GLOW_VOLTS_TOLERANCE` (the rail would move), or when the
- * circuit's current (the section's plate milliamps, when given) lies outside its regulating
- * range. A higher striking voltage is a note: the supply was sized for the socket type's.
+ * socket type's by more than `GLOW_VOLTS_TOLERANCE` (the rail would move), when the circuit's
+ * current (the section's plate milliamps, when given) lies outside its regulating range, or —
+ * with no current given — when its range does not cover the socket type's. A higher striking
+ * voltage is a note: the supply was sized for the socket type's.
  *
  * Returns empty lists when the socket uses no regulator section; a side without glow data
  * yields a note that the voltage could not be compared.
@@ -63,6 +64,15 @@ export function compareGlow(
     if (current !== undefined && (current < offered.minMilliamps || current > offered.maxMilliamps)) {
       failures.push(
         `the circuit passes ${formatNumber(current)} mA; ${candidate.designation} regulates only between ${formatNumber(offered.minMilliamps)} and ${formatNumber(offered.maxMilliamps)} mA`,
+      );
+      continue;
+    }
+    // A shunt regulator's current swings with the load over the range the circuit was designed
+    // for; without a measured current the substitute must cover the socket type's whole range.
+    if (current === undefined && (offered.minMilliamps > wanted.minMilliamps || offered.maxMilliamps < wanted.maxMilliamps)) {
+      failures.push(
+        `${candidate.designation} regulates over ${formatNumber(offered.minMilliamps)}–${formatNumber(offered.maxMilliamps)} mA, narrower than the ` +
+          `${formatNumber(wanted.minMilliamps)}–${formatNumber(wanted.maxMilliamps)} mA ${socketType.designation}'s circuit may use; give the circuit's current to check it against the real one`,
       );
       continue;
     }

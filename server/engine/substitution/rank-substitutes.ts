@@ -167,7 +167,13 @@ function judgeCandidate(context: RankingContext, candidate: TubeTypeSpec): Candi
   // Sections of one kind carry the same ratings in practice, so the first mapping decides
   // exclusion; the ratings are checked again below when the chosen wiring maps differently.
   const ratingsUnder = (sectionMap: ReadonlyMap<number, number> | undefined) =>
-    checkRatings(candidate.designation, (socketSection) => sectionMaxRatings(candidate, sectionMap?.get(socketSection) ?? socketSection), context.operating, context.deratingFactor);
+    checkRatings(
+      candidate.designation,
+      (socketSection) => sectionMaxRatings(candidate, sectionMap?.get(socketSection) ?? socketSection),
+      context.operating,
+      context.deratingFactor,
+      (socketSection) => socketType.sections.find((section) => section.index === socketSection)?.kind === "regulator",
+    );
   let ratings = ratingsUnder(mappings.ok ? mappings.mappings[0] : undefined);
   reasons.push(...ratings.failures);
   const glowUnder = (sectionMapping: readonly SectionMappingEntry[]) => compareGlow(socketType, candidate, sectionMapping, context.operating);

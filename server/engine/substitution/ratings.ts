@@ -17,6 +17,7 @@ const RATING_UNITS: Record<string, string> = {
   screenVolts: "V",
   cathodeMilliamps: "mA",
   heaterCathodeVolts: "V",
+  outputMilliamps: "mA",
 };
 
 const RATING_NAMES: Record<string, string> = {
@@ -25,13 +26,15 @@ const RATING_NAMES: Record<string, string> = {
   screenVolts: "screen voltage",
   cathodeMilliamps: "cathode current",
   heaterCathodeVolts: "heater–cathode voltage",
+  outputMilliamps: "regulator current",
 };
 
 /**
  * Checks each used section's circuit values against the maximum ratings of the substitute
  * section that serves it (`ratingsForSection(socket section)`: a section's own ratings over the
  * envelope's) times `deratingFactor`: plate volts, plate dissipation Pa = Va·Ia, screen volts,
- * cathode current Ik = Ia + Ig2 (screen current when given), heater–cathode volts.
+ * cathode current Ik = Ia + Ig2 (screen current when given), heater–cathode volts; on a
+ * regulator section (`isRegulatorSection`) only the current it passes against outputMilliamps.
  * headroomPercent = (deratedMax − circuit) / deratedMax × 100.
  *
  * Never throws; a rating missing from the data is listed in `unchecked`.
@@ -44,6 +47,7 @@ export function checkRatings(
   ratingsForSection: (socketSection: number) => MaxRatings,
   operating: readonly CircuitOperatingValues[],
   deratingFactor: number,
+  isRegulatorSection: (socketSection: number) => boolean = () => false,
 ): RatingsResult {
   const checks: RatingCheck[] = [];
   const failures: string[] = [];
@@ -72,6 +76,11 @@ export function checkRatings(
 
   for (const values of operating) {
     const section = values.section;
+    // A glow regulator is rated by the current it may pass; plate volts and watts do not apply.
+    if (isRegulatorSection(section)) {
+      check("outputMilliamps", values.plateMilliamps, section);
+      continue;
+    }
     check("plateVolts", values.plateVolts, section);
     check("plateWatts", (values.plateVolts * values.plateMilliamps) / 1000, section, ` (${formatNumber(values.plateVolts)} V × ${formatNumber(values.plateMilliamps)} mA)`);
     check("screenVolts", values.screenVolts, section);

@@ -81,7 +81,7 @@ describe("per-section maximum ratings", () => {
 // ── Glow regulators ──────────────────────────────────────────────────────────────────────────
 
 /** Basing 5BO as the library gives it: anodes on 1 and 5 joined inside, cathode on 2, 4, 7, IC 3 and 6 (from memory). */
-function regulator(designation: string, operatingVolts: number, strikingVolts: number): TubeTypeSpec {
+function regulator(designation: string, operatingVolts: number, strikingVolts: number, maxMilliamps = 30): TubeTypeSpec {
   return {
     designation,
     aliases: [],
@@ -96,9 +96,9 @@ function regulator(designation: string, operatingVolts: number, strikingVolts: n
       { pin: "6", element: "ic" },
       { pin: "7", element: "k", section: 1 },
     ],
-    sections: [{ index: 1, kind: "regulator", typical: [], glow: { operatingVolts, strikingVolts, minMilliamps: 5, maxMilliamps: 30 } }],
+    sections: [{ index: 1, kind: "regulator", typical: [], glow: { operatingVolts, strikingVolts, minMilliamps: 5, maxMilliamps } }],
     heater: { volts: 0, amps: 0, coldCathode: true },
-    maxRatings: { outputMilliamps: 30 },
+    maxRatings: { outputMilliamps: maxMilliamps },
     sources: { pins: "from memory", heater: "from memory", maxRatings: "from memory", "sections.1.glow": "from memory" },
   };
 }
@@ -132,6 +132,19 @@ describe("glow regulators", () => {
     const explanation = explanationFor(ranking, "TEST-OA2-HARD");
     expect(explanation).toContain("warning: needs 200 V to strike where OA2 needs 185 V; check that the unregulated supply reaches it at low mains");
     expect(explanation).toContain("regulation: regulates at 152 V (+1.3 % from 150 V) over 5–30 mA; the circuit passes 20 mA");
+  });
+
+  it("without the circuit's current, want the socket type's whole regulating range covered", () => {
+    // Constructed: a 150 V regulator rated to 40 mA (as the octal 150 V types are, from memory) in whose socket an OA2 (to 30 mA) is tried.
+    const wide = regulator("TEST-150-40", 150, 185, 40);
+    const unknownCurrent = rankSubstitutes(socket({ socketType: wide, heaterSupply: { kind: "parallel", volts: 0 } }), [oa2], []);
+    expect(reasonsFor(unknownCurrent, "OA2")).toContain(
+      "OA2 regulates over 5–30 mA, narrower than the 5–40 mA TEST-150-40's circuit may use; give the circuit's current to check it against the real one",
+    );
+    const measured = rankSubstitutes(socket({ socketType: wide, heaterSupply: { kind: "parallel", volts: 0 }, operating: [{ section: 1, plateVolts: 150, plateMilliamps: 18 }] }), [oa2], []);
+    expect(explanationFor(measured, "OA2")).toContain("regulation: regulates at 150 V (0 % from 150 V) over 5–30 mA; the circuit passes 18 mA");
+    // 18 mA of OA2's 30 mA maximum output: (30 − 18) / 30 = 40 % headroom (arithmetic); plate volts and watts are not regulator ratings.
+    expect(measured.candidates[0].ratings.map((check) => [check.rating, check.headroomPercent])).toEqual([["outputMilliamps", 40]]);
   });
 
   it("will not put a cold-cathode type in a series heater string", () => {
