@@ -5,8 +5,8 @@
 import { z } from "zod";
 import { parseQuantity, type QuantityDimension, type QuantityOptions } from "../engine/units/index.ts";
 
-/** Sections the form offers rows for (the library's largest type has four). */
-export const MAX_FORM_SECTIONS = 4;
+/** Sections the form offers rows for: a seven-segment display with its dot has eight, the most in the library. */
+export const MAX_FORM_SECTIONS = 8;
 
 /** Largest supply values accepted: typo catchers, not ratings (a 117 V AC/DC string is the longest in common use; common practice, no source). */
 export const MAX_HEATER_SUPPLY_VOLTS = 200;

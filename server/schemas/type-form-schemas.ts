@@ -29,8 +29,8 @@ export type TypeListQuery = z.infer<typeof typeListQuerySchema>;
 
 // ── The add-a-type form ───────────────────────────────────────────────────────────────────
 
-/** Sections the form offers (the library's largest type has four). */
-export const TYPE_FORM_SECTIONS = 4;
+/** Sections the form offers: a seven-segment display with its dot has eight, the most in the library. */
+export const TYPE_FORM_SECTIONS = 8;
 
 /** Form field → the `MaxRatings` key it fills, with its label and unit. */
 export const MAX_RATING_FIELDS = [

@@ -321,9 +321,12 @@ export function substituteResultView(answer: SubstituteAnswer): SubstituteResult
   const { ranking, socket } = answer;
   const candidates = ranking.candidates.map((candidate, index) => candidateRow(candidate, index + 1));
   const conditions: string[] = [];
+  const hasTypicalPoint = socket.spec.sections.some((section) => section.typical.length > 0);
   conditions.push(
     answer.operatingFromTypical
-      ? `ratings and characteristics checked at ${socket.designation}'s datasheet typical point, not measured circuit values`
+      ? hasTypicalPoint
+        ? `ratings and characteristics checked at ${socket.designation}'s datasheet typical point, not measured circuit values`
+        : `${socket.designation}'s data give no typical point, so ratings and characteristics are only checked where you enter the circuit's values`
       : "ratings and characteristics checked at the circuit's values you entered (sections left blank use the typical point)",
   );
   conditions.push(answer.deratingFactor < 1 ? `derating: the circuit may use ${displayNumber(answer.deratingFactor * 100, 1)} % of each maximum` : "no derating: the published maxima as they stand");
@@ -433,10 +436,10 @@ export function sectionRowsFor(spec: TubeTypeSpec | undefined): SectionRowView[]
   }
   return spec.sections.slice(0, MAX_FORM_SECTIONS).map((section) => {
     const typical = section.typical[0];
-    const hasScreen = section.kind === "pentode" || section.kind === "beam-tetrode";
+    const hasScreen = section.kind === "pentode" || section.kind === "beam-tetrode" || section.kind === "heptode";
     return {
       section: section.index,
-      label: `Section ${section.index} · ${section.kind}`,
+      label: `Section ${section.index} · ${section.kind}${section.label === undefined ? "" : `, ${section.label}`}`,
       hasScreen,
       placeholders: {
         plateVolts: typical ? displayNumber(typical.plateVolts) : "",
