@@ -137,8 +137,13 @@ describe("settings", () => {
     const bad = await postForm(t.app, "/settings", { ...form, wornBelowPercent: "abc" }, { from: "/settings" });
     expect(bad.statusCode).toBe(422);
     expect(bad.body).toContain("enter a number");
+    const outOfRange = await postForm(t.app, "/settings", { ...form, wornBelowPercent: "250", failedBelowPercent: "" }, { from: "/settings" });
+    expect(outOfRange.statusCode).toBe(422);
+    expect(outOfRange.body).toMatch(/id="wornBelowPercent-error"[^>]*>Worn below \(percent of reference transconductance\): must be between/);
+    expect(outOfRange.body).toMatch(/id="failedBelowPercent-error"[^>]*>[^<]*enter a number/);
     const inverted = await postForm(t.app, "/settings", { ...form, wornBelowPercent: "40" }, { from: "/settings" });
     expect(inverted.statusCode).toBe(422);
+    expect(inverted.body).toContain("must not exceed the worn-below threshold");
     expect((await t.app.settings.thresholds()).wornBelowPercent).toBe(60);
   });
 });

@@ -1,6 +1,8 @@
 /** Verdict thresholds: shown with their defaults and sources, saved, and applied to every tube. */
 import type { FastifyInstance } from "fastify";
 import { VERDICT_THRESHOLD_DESCRIPTIONS, resolveVerdictThresholds } from "../../engine/verdicts/index.ts";
+import { parseWith } from "../../schemas/form-parsing.ts";
+import { thresholdsFormSchema } from "../../schemas/settings-schemas.ts";
 import { render, redirectAfterPost } from "../render.ts";
 
 export default async function settingsPages(app: FastifyInstance) {
@@ -11,21 +13,12 @@ export default async function settingsPages(app: FastifyInstance) {
   });
 
   app.post("/settings", async (request, reply) => {
-    const body = request.body as Record<string, string>;
-    const errors: Record<string, string> = {};
-    const overrides: Record<string, number> = {};
-    for (const description of VERDICT_THRESHOLD_DESCRIPTIONS) {
-      const text = (body[description.key] ?? "").trim();
-      const value = Number(text);
-      if (text === "" || !Number.isFinite(value)) errors[description.key] = `${description.label}: enter a number`;
-      else if (value < description.min || value > description.max) errors[description.key] = `${description.label}: must be between ${description.min} and ${description.max} ${description.unit}`;
-      else overrides[description.key] = value;
-    }
-    const resolved = Object.keys(errors).length ? null : resolveVerdictThresholds(overrides);
-    if (!resolved || !resolved.ok) {
-      if (resolved && !resolved.ok) errors._form = resolved.reason;
+    const parsed = parseWith(thresholdsFormSchema, request.body);
+    const resolved = parsed.ok ? resolveVerdictThresholds(parsed.data) : null;
+    if (!parsed.ok || !resolved?.ok) {
+      const errors = parsed.ok ? { _form: resolved && !resolved.ok ? resolved.reason : "" } : parsed.errors;
       reply.code(422);
-      return render(request, reply, "pages/settings.eta", { title: "Settings", nav: "settings", descriptions: VERDICT_THRESHOLD_DESCRIPTIONS, values: body, errors, saved: false });
+      return render(request, reply, "pages/settings.eta", { title: "Settings", nav: "settings", descriptions: VERDICT_THRESHOLD_DESCRIPTIONS, values: request.body, errors, saved: false });
     }
     await app.settings.saveThresholds(resolved.thresholds);
     await app.verdicts.recompute();
