@@ -2,11 +2,11 @@
  * The full-backup file: every row of every ledger table, ids included, so a restore puts the
  * ledger back exactly as it was.
  *
- * Format (JSON, UTF-8), version 1:
+ * Format (JSON, UTF-8), version 2:
  *
  *   {
  *     "format": "tubeledger-backup",
- *     "version": 1,
+ *     "version": 2,
  *     "createdAt": "2026-05-01T14:22:33.000Z",
  *     "tables": {
  *       "TubeType":  { "columns": ["id", "designation", …], "rows": [[1, "12AU7", …], …] },
@@ -20,13 +20,19 @@
  * upload limit. Values are the stored SQLite values: numbers, text, null; boolean columns are
  * written as true/false; timestamps are the stored text. Every table must be present and list
  * exactly the columns below, in this order; a new column means a new version.
+ *
+ * Versions: 2 added each reading's own test conditions (Reading.gridVolts, heaterVolts,
+ * plateVolts, screenVolts, after createdAt; null = the session's). A version 1 file is still
+ * read: its readings get null for those four columns, which is what they meant.
  */
 import { z } from "zod";
 import { TUBE_STATES, VERDICTS } from "../schemas/tube-schemas.ts";
 import { tubeTypeSpecSchema } from "../schemas/tube-type-schema.ts";
 
 export const BACKUP_FORMAT = "tubeledger-backup";
-export const BACKUP_VERSION = 1;
+export const BACKUP_VERSION = 2;
+/** Older versions this ledger still restores, each upgraded to the current layout before checking. */
+export const READABLE_BACKUP_VERSIONS: readonly number[] = [1, BACKUP_VERSION];
 
 /** How a column's value is checked and stored. */
 export type ColumnKind =
@@ -109,6 +115,8 @@ export const BACKUP_TABLES: readonly TableLayout[] = [
       ["gmMicroSiemens", optionalNumber], ["plateMilliamps", optionalNumber], ["emissionValue", optionalNumber],
       ["emissionPassMark", optionalNumber], ["emissionFullScale", optionalNumber], ["gridMicroamps", optionalNumber],
       ["leakageMicroamps", optionalNumber], ["shorts", text], ["heaterOpen", bool], ["noise", text], ["createdAt", timestamp],
+      // Version 2: the reading's own conditions, in the order the migration added them.
+      ["gridVolts", optionalNumber], ["heaterVolts", optionalNumber], ["plateVolts", optionalNumber], ["screenVolts", optionalNumber],
     ],
   },
   {
@@ -318,6 +326,27 @@ function checkKeysAndReferences(tables: Record<BackupTableName, BackupTable>, co
 
 export type BackupParse = { ok: true; document: BackupDocument } | { ok: false; message: string; problems: string[] };
 
+/** The Reading columns version 2 appended; a version 1 file has every other column as now. */
+const READING_COLUMNS_ADDED_IN_VERSION_2 = ["gridVolts", "heaterVolts", "plateVolts", "screenVolts"];
+
+/**
+ * A version 1 document in the version 2 layout: each Reading row gets null for the four
+ * condition columns (it was read at its session's conditions). Anything that does not look
+ * like a version 1 Reading table is left alone for the full check to name.
+ */
+function upgradeFromVersion1(input: Record<string, unknown>): Record<string, unknown> {
+  const tables = input.tables as Record<string, unknown> | undefined;
+  const reading = tables?.Reading as { columns?: unknown; rows?: unknown } | undefined;
+  const current = columnNames(BACKUP_TABLES.find((layout) => layout.name === "Reading")!);
+  const older = current.filter((name) => !READING_COLUMNS_ADDED_IN_VERSION_2.includes(name));
+  const isOlderLayout = Array.isArray(reading?.columns) && reading.columns.length === older.length && reading.columns.every((name, index) => name === older[index]);
+  if (!tables || !reading || !isOlderLayout) return { ...input, version: BACKUP_VERSION };
+  const rows = Array.isArray(reading.rows)
+    ? reading.rows.map((row) => (Array.isArray(row) && row.length === older.length ? [...row, ...READING_COLUMNS_ADDED_IN_VERSION_2.map(() => null)] : row))
+    : reading.rows;
+  return { ...input, version: BACKUP_VERSION, tables: { ...tables, Reading: { ...reading, columns: current, rows } } };
+}
+
 /** How many problems a failed check lists; the first few are enough to find the fault. */
 export const MAX_PROBLEMS_SHOWN = 8;
 
@@ -343,10 +372,11 @@ function describePath(path: readonly PropertyKey[]): string {
 export function parseBackupDocument(input: unknown): BackupParse {
   const header = headerSchema.safeParse(input);
   if (!header.success) return { ok: false, message: header.error.issues[0].message, problems: [] };
-  if (header.data.version !== BACKUP_VERSION) {
-    return { ok: false, message: `backup version ${header.data.version} is not one this ledger reads (it reads version ${BACKUP_VERSION})`, problems: [] };
+  if (!READABLE_BACKUP_VERSIONS.includes(header.data.version)) {
+    return { ok: false, message: `backup version ${header.data.version} is not one this ledger reads (it reads versions ${READABLE_BACKUP_VERSIONS.join(" and ")})`, problems: [] };
   }
-  const result = documentSchema.safeParse(input);
+  const current = header.data.version === 1 ? upgradeFromVersion1(input as Record<string, unknown>) : input;
+  const result = documentSchema.safeParse(current);
   if (result.success) return { ok: true, document: result.data as BackupDocument };
   const problems = result.error.issues.slice(0, MAX_PROBLEMS_SHOWN).map((issue) => `${describePath(issue.path)}: ${issue.message}`);
   const count = result.error.issues.length;
@@ -371,7 +401,7 @@ export function parseBackupText(text: string): BackupParse {
 /** The document's outline for the OpenAPI description (the full check is `parseBackupDocument`). */
 export const backupDocumentOutlineSchema = z.object({
   format: z.literal(BACKUP_FORMAT),
-  version: z.literal(BACKUP_VERSION),
+  version: z.literal(READABLE_BACKUP_VERSIONS as [number, ...number[]]).describe(`written as ${BACKUP_VERSION}; a restore also reads ${READABLE_BACKUP_VERSIONS.filter((v) => v !== BACKUP_VERSION).join(", ")}`),
   createdAt: z.string(),
   tables: z.object(
     Object.fromEntries(

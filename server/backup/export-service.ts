@@ -79,17 +79,25 @@ interface ReadingExportRow {
   shorts: string;
   heaterOpen: number;
   noise: string;
+  /** The reading's own conditions; null: read at the session's. */
+  readingHeaterVolts: number | null;
+  readingPlateVolts: number | null;
+  readingScreenVolts: number | null;
+  readingGridVolts: number | null;
 }
 
 const readingQuery = `SELECT s.id AS sessionId, s.date, s.instrument, s.heaterVolts, s.plateVolts, s.screenVolts, s.gridVolts,
     t.id AS tubeId, t.label, tt.designation AS type, r.section, r.gmMicroSiemens, r.plateMilliamps, r.emissionValue,
-    r.emissionPassMark, r.emissionFullScale, r.gridMicroamps, r.leakageMicroamps, r.shorts, r.heaterOpen, r.noise
+    r.emissionPassMark, r.emissionFullScale, r.gridMicroamps, r.leakageMicroamps, r.shorts, r.heaterOpen, r.noise,
+    r.heaterVolts AS readingHeaterVolts, r.plateVolts AS readingPlateVolts, r.screenVolts AS readingScreenVolts, r.gridVolts AS readingGridVolts
   FROM Reading r JOIN TestSession s ON s.id = r.sessionId JOIN Tube t ON t.id = r.tubeId JOIN TubeType tt ON tt.id = t.typeId
   ORDER BY s.date, s.id, t.label, r.section`;
 
 /**
  * One row per section reading. The reading columns carry the names a bench CSV is expected to
- * use, so this file can be imported again; the session columns say where each row was read.
+ * use, so this file can be imported again (reading_*_V are the reading's own conditions, blank
+ * when it was read at the session's; the importer maps them before the session's columns); the
+ * session columns say where each row was read.
  */
 export const READING_CSV_COLUMNS: ReadonlyArray<readonly [string, (row: ReadingExportRow) => string | number | null]> = [
   ["label", (row) => row.label],
@@ -105,6 +113,10 @@ export const READING_CSV_COLUMNS: ReadonlyArray<readonly [string, (row: ReadingE
   ["shorts", (row) => row.shorts],
   ["heater_open", (row) => (row.heaterOpen === 1 ? 1 : 0)],
   ["noise", (row) => row.noise],
+  ["reading_heater_V", (row) => row.readingHeaterVolts],
+  ["reading_plate_V", (row) => row.readingPlateVolts],
+  ["reading_screen_V", (row) => row.readingScreenVolts],
+  ["reading_grid_V", (row) => row.readingGridVolts],
   ["date", (row) => row.date],
   ["instrument", (row) => row.instrument],
   ["heater_V", (row) => row.heaterVolts],

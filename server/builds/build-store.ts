@@ -85,7 +85,7 @@ function volts(value: number | null): string {
   return value === null ? "?" : String(value);
 }
 
-/** What readings must share to be compared: the quantity and the session's test conditions. */
+/** What readings must share to be compared: the quantity and the test conditions (the reading's own over the session's). */
 function basisOf(reading: ReadingRow, session: SessionRow | undefined): { value: number | null; basis: string } {
   const conditions = session ? `${volts(session.plateVolts)} V / ${volts(session.gridVolts)} V${session.screenVolts !== null ? ` / screen ${session.screenVolts} V` : ""}` : "unknown conditions";
   if (reading.gmMicroSiemens !== null) return { value: reading.gmMicroSiemens, basis: `gm µS at ${conditions}` };
@@ -154,20 +154,24 @@ export class BuildStore {
     const rank = new Map(sessions.map((session, index) => [session.id, index]));
     const sessionById = new Map(sessions.map((session) => [session.id, session]));
     const basisCache = new Map<string, string>();
-    const basisText = (sessionId: number, kind: "gm" | "emission", fullScale: number | null): string => {
-      const key = `${sessionId}|${kind}|${fullScale}`;
+    const basisText = (sessionId: number, kind: "gm" | "emission", fullScale: number | null, own: Pick<SessionRow, "plateVolts" | "gridVolts" | "screenVolts">): string => {
+      const key = `${sessionId}|${kind}|${fullScale}|${own.plateVolts}|${own.gridVolts}|${own.screenVolts}`;
       let text = basisCache.get(key);
       if (text === undefined) {
         const probe: ReadingRow = { tubeId: 0, sessionId, section: 0, gmMicroSiemens: kind === "gm" ? 1 : null, emissionValue: kind === "emission" ? 1 : null, emissionFullScale: fullScale };
-        text = basisOf(probe, sessionById.get(sessionId)).basis;
+        const session = sessionById.get(sessionId);
+        // A reading's own conditions override the session's field by field, as its verdict does.
+        const judged = session === undefined ? undefined : { id: session.id, plateVolts: own.plateVolts ?? session.plateVolts, gridVolts: own.gridVolts ?? session.gridVolts, screenVolts: own.screenVolts ?? session.screenVolts };
+        text = basisOf(probe, judged).basis;
         basisCache.set(key, text);
       }
       return text;
     };
-    type Row = [number, string, number, string, string, string, number | null, number | null, number | null, number | null, number | null, number | null];
+    type Row = [number, string, number, string, string, string, number | null, number | null, number | null, number | null, number | null, number | null, number | null, number | null, number | null];
     const rows = this.sqlite
       .prepare(
-        `SELECT t.id, t.label, t.typeId, t.location, t.state, t.verdict, t.percent, r.sessionId, r.section, r.gmMicroSiemens, r.emissionValue, r.emissionFullScale
+        `SELECT t.id, t.label, t.typeId, t.location, t.state, t.verdict, t.percent, r.sessionId, r.section, r.gmMicroSiemens, r.emissionValue, r.emissionFullScale,
+                r.plateVolts, r.gridVolts, r.screenVolts
          FROM Tube t LEFT JOIN Reading r ON r.tubeId = t.id WHERE ${tubeWhereSql} ORDER BY t.id`,
       )
       .raw()
@@ -188,8 +192,9 @@ export class BuildStore {
         const row = rows[index];
         if (row[7] !== newest) continue;
         const [gm, emission, fullScale] = [row[9], row[10], row[11]];
-        if (gm !== null) sections.push({ section: row[8]!, balanceValue: gm, balanceBasis: basisText(newest, "gm", null) });
-        else if (emission !== null) sections.push({ section: row[8]!, balanceValue: emission, balanceBasis: basisText(newest, "emission", fullScale) });
+        const own = { plateVolts: row[12], gridVolts: row[13], screenVolts: row[14] };
+        if (gm !== null) sections.push({ section: row[8]!, balanceValue: gm, balanceBasis: basisText(newest, "gm", null, own) });
+        else if (emission !== null) sections.push({ section: row[8]!, balanceValue: emission, balanceBasis: basisText(newest, "emission", fullScale, own) });
         else sections.push({ section: row[8]!, balanceValue: null, balanceBasis: "none" });
       }
       sections.sort((left, right) => left.section - right.section);

@@ -9,6 +9,7 @@ import type { FieldErrors } from "../schemas/form-parsing.ts";
 export const IMPORT_FIELD_KEYS = [
   "label", "type", "section", "gm", "plateMilliamps", "emissionValue", "emissionPassMark", "emissionFullScale",
   "gridMicroamps", "leakageMicroamps", "shorts", "heaterOpen", "noise", "gmSection2", "plateMilliampsSection2", "emissionSection2",
+  "plateVolts", "screenVolts", "gridVolts", "heaterVolts",
 ] as const;
 export type ImportFieldKey = (typeof IMPORT_FIELD_KEYS)[number];
 
@@ -16,7 +17,7 @@ export interface ImportFieldInfo {
   key: ImportFieldKey;
   label: string;
   hint: string;
-  group: "tube" | "reading" | "second-section";
+  group: "tube" | "reading" | "second-section" | "conditions";
   /** Normalised header names (lower case, letters and digits only) that select this field when guessing. */
   guesses: readonly string[];
 }
@@ -38,6 +39,11 @@ export const IMPORT_FIELDS: readonly ImportFieldInfo[] = [
   { key: "gmSection2", group: "second-section", label: "Transconductance, section 2", hint: "wide files: one row per tube", guesses: ["gm2", "gms2", "s2gm", "gmsection2", "transconductance2"] },
   { key: "plateMilliampsSection2", group: "second-section", label: "Plate current section 2 (mA)", hint: "wide files", guesses: ["ia2", "ip2", "s2ia", "platecurrent2"] },
   { key: "emissionSection2", group: "second-section", label: "Emission section 2", hint: "wide files", guesses: ["emission2", "s2emission", "emis2"] },
+  // Per-row test conditions. The "reading…" names come first in the export, ahead of the session's own columns.
+  { key: "plateVolts", group: "conditions", label: "Plate volts", hint: "this row's plate volts; blank cell or not mapped: the session's", guesses: ["readingplatev", "platev", "platevolts", "platevoltage", "anodev", "anodevolts"] },
+  { key: "screenVolts", group: "conditions", label: "Screen volts", hint: "this row's screen volts; blank: the session's", guesses: ["readingscreenv", "screenv", "screenvolts", "screenvoltage", "g2v", "g2volts"] },
+  { key: "gridVolts", group: "conditions", label: "Grid volts (bias)", hint: "this row's grid bias, signed (e.g. -8.5); blank: the session's", guesses: ["readinggridv", "gridv", "gridvolts", "gridbias", "bias", "biasv", "biasvolts"] },
+  { key: "heaterVolts", group: "conditions", label: "Heater volts", hint: "this row's heater volts; blank: the session's", guesses: ["readingheaterv", "heaterv", "heatervolts", "filamentv", "filamentvolts"] },
 ];
 
 export const FIELD_LABELS: Readonly<Record<ImportFieldKey, string>> = Object.fromEntries(IMPORT_FIELDS.map((f) => [f.key, f.label])) as Record<ImportFieldKey, string>;

@@ -14,6 +14,7 @@ import { parseWith } from "../schemas/form-parsing.ts";
 import { sessionInputSchema } from "../schemas/session-schemas.ts";
 import { sqlTimestamp } from "../db/sql-time.ts";
 import { formatQuantity, formatTransconductance } from "../engine/units/index.ts";
+import { describeConditions } from "../verdicts/verdict-service.ts";
 import { BoundedStore } from "./bounded-store.ts";
 import { decodeUpload, readCsvText, DELIMITER_NAMES, type CsvTable } from "./csv-table.ts";
 import {
@@ -74,6 +75,8 @@ export interface SampleRow {
   shorts: string;
   heaterOpen: string;
   noise: string;
+  /** The row's own conditions as display text; "session's" when it gives none. */
+  conditions: string;
 }
 
 export interface ImportPreview {
@@ -316,6 +319,7 @@ export class ImportService {
       shorts: r.shorts,
       heaterOpen: r.heaterOpen ? "open" : "",
       noise: r.noise,
+      conditions: r.plateVolts === null && r.screenVolts === null && r.gridVolts === null && r.heaterVolts === null ? "session's" : describeConditions(r),
     }));
     return {
       rows: plan.rowCount,
@@ -425,12 +429,13 @@ export class ImportService {
 
       const upsertReading = sqlite.prepare(
         `INSERT INTO Reading (sessionId, tubeId, section, gmMicroSiemens, plateMilliamps, emissionValue, emissionPassMark, emissionFullScale,
-                              gridMicroamps, leakageMicroamps, shorts, heaterOpen, noise, createdAt)
-         VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)
+                              gridMicroamps, leakageMicroamps, shorts, heaterOpen, noise, heaterVolts, plateVolts, screenVolts, gridVolts, createdAt)
+         VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)
          ON CONFLICT(sessionId, tubeId, section) DO UPDATE SET
            gmMicroSiemens = excluded.gmMicroSiemens, plateMilliamps = excluded.plateMilliamps, emissionValue = excluded.emissionValue,
            emissionPassMark = excluded.emissionPassMark, emissionFullScale = excluded.emissionFullScale, gridMicroamps = excluded.gridMicroamps,
            leakageMicroamps = excluded.leakageMicroamps, shorts = excluded.shorts, heaterOpen = excluded.heaterOpen, noise = excluded.noise,
+           heaterVolts = excluded.heaterVolts, plateVolts = excluded.plateVolts, screenVolts = excluded.screenVolts, gridVolts = excluded.gridVolts,
            createdAt = excluded.createdAt`,
       );
       const tubeIds = new Set<number>();
@@ -439,7 +444,7 @@ export class ImportService {
           const tubeId = r.tubeId ?? newTubeIds.get(r.label)!;
           tubeIds.add(tubeId);
           upsertReading.run(sessionId, tubeId, r.section, r.gmMicroSiemens, r.plateMilliamps, r.emissionValue, r.emissionPassMark, r.emissionFullScale,
-            r.gridMicroamps, r.leakageMicroamps, r.shorts, r.heaterOpen ? 1 : 0, r.noise, now);
+            r.gridMicroamps, r.leakageMicroamps, r.shorts, r.heaterOpen ? 1 : 0, r.noise, r.heaterVolts, r.plateVolts, r.screenVolts, r.gridVolts, now);
         }
         done = plan.newTubes.length + Math.min(plan.readings.length, start + COMMIT_CHUNK_ROWS);
         progress("readings", done, grandTotal);

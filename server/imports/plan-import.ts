@@ -5,6 +5,7 @@
  */
 import { parseQuantity, parseTransconductance } from "../engine/units/index.ts";
 import { parseShorts } from "../sessions/bench-row.ts";
+import { parseConditionVolts, type ConditionField } from "../sessions/reading-conditions.ts";
 import type { CsvTable } from "./csv-table.ts";
 import { FIELD_LABELS, type ColumnMapping, type ImportFieldKey } from "./import-fields.ts";
 
@@ -31,6 +32,11 @@ export interface PlannedReading {
   shorts: string;
   heaterOpen: boolean;
   noise: string;
+  /** The row's own test conditions (mapped condition columns); null: the session's. */
+  heaterVolts: number | null;
+  plateVolts: number | null;
+  screenVolts: number | null;
+  gridVolts: number | null;
 }
 
 export interface ImportPlan {
@@ -134,6 +140,15 @@ export function planImport(table: CsvTable, mapping: ColumnMapping, lookups: Pla
     problem(columnName(key), `'${text}' is not a plain number on the instrument's scale`);
     return null;
   };
+  const conditionVolts = (key: ConditionField): number | null => {
+    const text = cell(key);
+    if (!text) return null;
+    const name = columnName(key);
+    const parsed = parseConditionVolts(text, key, name);
+    if (parsed.ok) return parsed.value;
+    problem(name, withoutPrefix(parsed.reason, name));
+    return null;
+  };
   const emission = (key: "emissionValue" | "emissionSection2"): number | null => {
     const value = plain(key);
     if (value === null) return null;
@@ -207,6 +222,11 @@ export function planImport(table: CsvTable, mapping: ColumnMapping, lookups: Pla
     if (!shorts.ok) problem(columnName("shorts"), withoutPrefix(shorts.reason, columnName("shorts")));
     const noise = cell("noise");
     if (noise.length > MAX_NOISE_LENGTH) problem(columnName("noise"), `longer than ${MAX_NOISE_LENGTH} characters`);
+    // The row's own conditions apply to every section the row fills; blank cells mean the session's.
+    const plateVolts = conditionVolts("plateVolts");
+    const screenVolts = conditionVolts("screenVolts");
+    const gridVolts = conditionVolts("gridVolts");
+    const heaterVolts = conditionVolts("heaterVolts");
 
     const first = {
       gmMicroSiemens: gm("gm"),
@@ -252,6 +272,7 @@ export function planImport(table: CsvTable, mapping: ColumnMapping, lookups: Pla
         gmMicroSiemens: first.gmMicroSiemens, plateMilliamps: first.plateMilliamps, emissionValue: first.emissionValue,
         emissionPassMark: first.emissionValue !== null ? passMark : null, emissionFullScale: first.emissionValue !== null ? fullScale : null,
         gridMicroamps: first.gridMicroamps, leakageMicroamps: first.leakageMicroamps, shorts: shorts.ok ? shorts.value : "", heaterOpen: heater, noise,
+        heaterVolts, plateVolts, screenVolts, gridVolts,
       });
     }
     if (secondAny) {
@@ -260,6 +281,7 @@ export function planImport(table: CsvTable, mapping: ColumnMapping, lookups: Pla
         gmMicroSiemens: second.gmMicroSiemens, plateMilliamps: second.plateMilliamps, emissionValue: second.emissionValue,
         emissionPassMark: second.emissionValue !== null ? passMark : null, emissionFullScale: second.emissionValue !== null ? fullScale : null,
         gridMicroamps: null, leakageMicroamps: null, shorts: "", heaterOpen: heater, noise,
+        heaterVolts, plateVolts, screenVolts, gridVolts,
       });
     }
     if (tubeId === null) newLabels.add(label);

@@ -5,6 +5,7 @@
 import { parseQuantity, parseTransconductance, type TransconductanceUnit } from "../engine/units/index.ts";
 import type { BenchRowInput } from "../schemas/session-schemas.ts";
 import type { FieldErrors } from "../schemas/form-parsing.ts";
+import { CONDITION_FIELDS, NO_CONDITIONS, parseAtToken, parseConditionVolts, type ConditionValues } from "./reading-conditions.ts";
 
 export interface ParsedSection {
   section: number;
@@ -18,6 +19,11 @@ export interface ParsedSection {
   shorts: string;
   heaterOpen: boolean;
   noise: string;
+  /** The row's own test conditions; null fields fall back to the session's. */
+  heaterVolts: number | null;
+  plateVolts: number | null;
+  screenVolts: number | null;
+  gridVolts: number | null;
 }
 
 const ELEMENTS = new Set(["a", "g1", "g2", "g3", "k", "h", "s"]);
@@ -37,8 +43,35 @@ export function parseShorts(text: string | undefined, fieldName: string): { ok: 
   return { ok: true, value: [...new Set(cleaned)].join(",") };
 }
 
+const CONDITION_LABELS: Readonly<Record<keyof ConditionValues, string>> = { heaterVolts: "Heater volts", plateVolts: "Plate volts", screenVolts: "Screen volts", gridVolts: "Grid volts" };
+
+/**
+ * The row's own conditions: the page's "at" token, or (from the API) the four separate fields —
+ * not both, so a row never carries two answers for one knob. Every section of the row gets them.
+ */
+export function parseRowConditions(row: Pick<BenchRowInput, "at" | "heaterVolts" | "plateVolts" | "screenVolts" | "gridVolts">, errors: FieldErrors): ConditionValues {
+  const separate = CONDITION_FIELDS.filter((field) => row[field] !== undefined);
+  if (row.at !== undefined && separate.length > 0) {
+    errors.at = `At: give the conditions either as at (such as @250/-8.5) or as ${separate.join(", ")}, not both`;
+    return { ...NO_CONDITIONS };
+  }
+  if (row.at !== undefined) {
+    const parsed = parseAtToken(row.at, "At");
+    if (!parsed.ok) errors.at = parsed.reason;
+    return parsed.ok && parsed.value ? parsed.value : { ...NO_CONDITIONS };
+  }
+  const value: ConditionValues = { ...NO_CONDITIONS };
+  for (const field of separate) {
+    const parsed = parseConditionVolts(row[field]!, field, CONDITION_LABELS[field]);
+    if (parsed.ok) value[field] = parsed.value;
+    else errors[field] = parsed.reason;
+  }
+  return value;
+}
+
 export function parseBenchSections(row: BenchRowInput, sectionCount: number): { ok: true; sections: ParsedSection[] } | { ok: false; errors: FieldErrors } {
   const errors: FieldErrors = {};
+  const conditions = parseRowConditions(row, errors);
   const unit = row.gmUnit as TransconductanceUnit;
   const number = (text: string | undefined, field: string, label: string, dimension: "milliamps" | "microamps" | "volts"): number | null => {
     if (!text) return null;
@@ -95,6 +128,10 @@ export function parseBenchSections(row: BenchRowInput, sectionCount: number): { 
       shorts: shorts.ok ? shorts.value : "",
       heaterOpen: row.heaterOpen,
       noise: row.noise ?? "",
+      heaterVolts: conditions.heaterVolts,
+      plateVolts: conditions.plateVolts,
+      screenVolts: conditions.screenVolts,
+      gridVolts: conditions.gridVolts,
     };
     if (any || row.heaterOpen) sections.push(section);
   }

@@ -2,10 +2,11 @@
 import type { PrismaClient } from "../../generated/prisma/client.ts";
 import type { TypeCatalog } from "../types/type-catalog.ts";
 import type { VerdictService } from "../verdicts/verdict-service.ts";
+import { judgedConditions, presentJudgedConditions, type StoredConditions, type StoredReading } from "../verdicts/verdict-service.ts";
 import type { BenchRowInput, SessionInput } from "../schemas/session-schemas.ts";
 import type { FieldErrors } from "../schemas/form-parsing.ts";
-import { parseQuantity } from "../engine/units/index.ts";
 import { parseBenchSections } from "./bench-row.ts";
+import { parseConditionVolts, type ConditionField } from "./reading-conditions.ts";
 import type { ServiceResult } from "../stock/stock-service.ts";
 
 export interface SessionConditions {
@@ -19,9 +20,9 @@ export interface SessionConditions {
 export function parseConditions(input: Pick<SessionInput, "heaterVolts" | "plateVolts" | "screenVolts" | "gridVolts">):
   { ok: true; value: SessionConditions } | { ok: false; errors: FieldErrors } {
   const errors: FieldErrors = {};
-  const volts = (text: string | undefined, field: string, label: string, allowNegative = false, max = 1000): number | null => {
+  const volts = (text: string | undefined, field: ConditionField, label: string): number | null => {
     if (!text) return null;
-    const parsed = parseQuantity(text, "volts", label, { allowNegative, max, min: allowNegative ? -max : 0 });
+    const parsed = parseConditionVolts(text, field, label);
     if (!parsed.ok) {
       errors[field] = parsed.reason;
       return null;
@@ -29,12 +30,24 @@ export function parseConditions(input: Pick<SessionInput, "heaterVolts" | "plate
     return parsed.value;
   };
   const value = {
-    heaterVolts: volts(input.heaterVolts, "heaterVolts", "Heater volts", false, 150),
+    heaterVolts: volts(input.heaterVolts, "heaterVolts", "Heater volts"),
     plateVolts: volts(input.plateVolts, "plateVolts", "Plate volts"),
     screenVolts: volts(input.screenVolts, "screenVolts", "Screen volts"),
-    gridVolts: volts(input.gridVolts, "gridVolts", "Grid bias", true, 300),
+    gridVolts: volts(input.gridVolts, "gridVolts", "Grid bias"),
   };
   return Object.keys(errors).length ? { ok: false, errors } : { ok: true, value };
+}
+
+/**
+ * A stored reading with `judgedAt`: the conditions it was judged at, whether they are the
+ * reading's own ("own": it gives at least one field) or the session's, and display text.
+ */
+export function withJudgedAt<R extends StoredReading>(session: StoredConditions, reading: R) {
+  const shown = presentJudgedConditions(session, reading);
+  return {
+    ...reading,
+    judgedAt: { ...judgedConditions(session, reading), source: shown.own ? ("own" as const) : ("session" as const), text: shown.text },
+  };
 }
 
 export class SessionService {
@@ -82,7 +95,11 @@ export class SessionService {
       const tube = list[0].tube;
       const entry = this.catalog.get(tube.typeId)!;
       const sorted = [...list].sort((a, b) => a.section - b.section);
-      return { tubeId: tube.id, label: tube.label, type: entry.designation, readings: sorted, evaluation: this.verdicts.evaluate(entry.spec, session, sorted, thresholds) };
+      return {
+        tubeId: tube.id, label: tube.label, type: entry.designation,
+        readings: sorted.map((reading) => withJudgedAt(session, reading)),
+        evaluation: this.verdicts.evaluate(entry.spec, session, sorted, thresholds),
+      };
     });
   }
 
@@ -133,7 +150,7 @@ export class SessionService {
     for (const reading of readings) bySession.set(reading.sessionId, [...(bySession.get(reading.sessionId) ?? []), reading]);
     return [...bySession.values()].map((list) => ({
       session: list[0].session,
-      readings: list,
+      readings: list.map((reading) => withJudgedAt(list[0].session, reading)),
       evaluation: this.verdicts.evaluate(entry.spec, list[0].session, list, thresholds),
     }));
   }

@@ -6,7 +6,8 @@
 import type Database from "better-sqlite3";
 import type { TypeCatalog } from "../types/type-catalog.ts";
 import type { SettingsService } from "../settings/settings-service.ts";
-import { evaluateTube, type SectionReading, type TestConditions, type TubeResult, type VerdictThresholds } from "../engine/verdicts/index.ts";
+import { evaluateTube, mergeTestConditions, type SectionReading, type TestConditions, type TubeResult, type VerdictThresholds } from "../engine/verdicts/index.ts";
+import { formatQuantity } from "../engine/units/index.ts";
 import type { TubeTypeSpec } from "../engine/tube-types/index.ts";
 
 export interface StoredReading {
@@ -20,6 +21,11 @@ export interface StoredReading {
   leakageMicroamps: number | null;
   shorts: string;
   heaterOpen: boolean | number;
+  /** The reading's own conditions (null: the session's); optional so rows read without them still judge. */
+  heaterVolts?: number | null;
+  plateVolts?: number | null;
+  screenVolts?: number | null;
+  gridVolts?: number | null;
 }
 
 export interface StoredConditions {
@@ -29,9 +35,52 @@ export interface StoredConditions {
   gridVolts: number | null;
 }
 
+/** The reading's own conditions, or null when it gives none (it was read at the session's). */
+export function ownConditions(reading: StoredReading): StoredConditions | null {
+  const own = {
+    heaterVolts: reading.heaterVolts ?? null,
+    plateVolts: reading.plateVolts ?? null,
+    screenVolts: reading.screenVolts ?? null,
+    gridVolts: reading.gridVolts ?? null,
+  };
+  return own.heaterVolts === null && own.plateVolts === null && own.screenVolts === null && own.gridVolts === null ? null : own;
+}
+
+/**
+ * The conditions a reading is judged at. Rule: the reading's own conditions override the
+ * session's field by field — a reading that gives only plate volts takes grid, screen and heater
+ * volts from its session (testers are usually re-set one knob at a time per type; see
+ * mergeTestConditions in the verdicts engine, which applies the same rule while judging).
+ */
+export function judgedConditions(session: StoredConditions, reading: StoredReading): StoredConditions {
+  return mergeTestConditions(session, ownConditions(reading));
+}
+
+/** "plate 250 V, grid −8.5 V, screen 150 V, heater 6.3 V" — only the recorded fields; "none recorded" otherwise. */
+export function describeConditions(conditions: StoredConditions): string {
+  const volts = (value: number) => formatQuantity(value, "volts");
+  const parts = [
+    conditions.plateVolts !== null ? `plate ${volts(conditions.plateVolts)}` : "",
+    conditions.gridVolts !== null ? `grid ${volts(conditions.gridVolts)}` : "",
+    conditions.screenVolts !== null ? `screen ${volts(conditions.screenVolts)}` : "",
+    conditions.heaterVolts !== null ? `heater ${volts(conditions.heaterVolts)}` : "",
+  ].filter(Boolean);
+  return parts.length ? parts.join(", ") : "none recorded";
+}
+
+/**
+ * Display text of the conditions a reading was judged at, and whether they are its own (at
+ * least one field set on the reading) or the session's.
+ */
+export function presentJudgedConditions(session: StoredConditions, reading: StoredReading): { own: boolean; text: string; sourceText: string } {
+  const own = ownConditions(reading) !== null;
+  return { own, text: describeConditions(judgedConditions(session, reading)), sourceText: own ? "own" : "session" };
+}
+
 export function toSectionReading(reading: StoredReading): SectionReading {
   return {
     section: reading.section,
+    conditions: ownConditions(reading),
     transconductanceMicroSiemens: reading.gmMicroSiemens,
     plateMilliamps: reading.plateMilliamps,
     emission:
@@ -50,7 +99,8 @@ export function toConditions(session: StoredConditions): TestConditions {
 }
 
 /**
- * Judges one tube's readings of one session. Stored readings were validated on entry, so an
+ * Judges one tube's readings of one session, each reading at its own conditions where it has
+ * them (field by field over the session's; see {@link judgedConditions}). Stored readings were validated on entry, so an
  * engine refusal here means data changed underneath (e.g. a type lost a section): the tube is
  * then shown as untested with the engine's reason rather than failing the page.
  */
@@ -116,7 +166,8 @@ export class VerdictService {
     const readings = this.sqlite
       .prepare(
         `SELECT tubeId, sessionId, section, gmMicroSiemens, plateMilliamps, emissionValue, emissionPassMark, emissionFullScale,
-                gridMicroamps, leakageMicroamps, shorts, heaterOpen FROM Reading ${where}ORDER BY tubeId`,
+                gridMicroamps, leakageMicroamps, shorts, heaterOpen, heaterVolts, plateVolts, screenVolts, gridVolts
+           FROM Reading ${where}ORDER BY tubeId`,
       )
       .all(...(all ? [] : tubeIds!)) as Array<StoredReading & { tubeId: number; sessionId: number }>;
     const typeOfTube = new Map(

@@ -75,6 +75,34 @@ run("bench entry in a real browser", () => {
     await expect.poll(async () => page.locator("#bench-rows tr[data-label='NEW-1']").count()).toBeGreaterThan(0);
     const created = await t.app.db.tube.findUniqueOrThrow({ where: { label: "NEW-1" } });
     expect(created.verdict).toBe("good");
+
+    // Row 3: a 12AX7 in this 12AU7 session, with the tester's setting for it typed in the At field.
+    await expect.poll(async () => page.evaluate(() => document.activeElement?.getAttribute("name"))).toBe("label");
+    await page.keyboard.type("AX-9");
+    await page.keyboard.press("Tab");
+    await expect.poll(async () => page.locator("#type-hint").innerText()).toContain("create this tube");
+    await page.keyboard.type("12AX7");
+    await page.keyboard.press("Tab"); // the "create this tube" box
+    for (const text of ["1500", "1600", "", ""]) {
+      await page.keyboard.press("Tab"); // gm 1, gm 2, Ia 1, Ia 2
+      if (text) await page.keyboard.type(text);
+    }
+    await page.keyboard.press("Tab");
+    expect(await page.evaluate(() => document.activeElement?.getAttribute("name"))).toBe("at");
+    await page.keyboard.type("@250/minus 2");
+    await page.keyboard.press("Enter");
+    await expect.poll(async () => page.locator("#at-error").innerText()).toContain("At grid volts");
+    await page.locator("#bench-entry input[name=at]").fill("@250/-2");
+    await page.locator("#bench-entry input[name=at]").press("Enter");
+    await expect.poll(async () => page.locator("#bench-rows tr[data-label='AX-9']").count()).toBe(2);
+    const ax9 = page.locator("#bench-rows tr[data-label='AX-9']").first();
+    // 1500 / 1600 = 93.75 % → 94 % (library 12AX7 point at 250 V, −2 V: 12AX7 data sheet as transcribed on guitarkitbuilder.com).
+    expect(await ax9.innerText()).toContain("94 %");
+    expect(await ax9.locator(".judged-at").innerText()).toBe("plate 250 V, grid -2 V own");
+    expect(await ax9.locator(".verdict-cell").innerText()).toBe("good");
+    // The next row starts with the same setting, ready for the next 12AX7.
+    expect(await page.locator("#bench-entry input[name=at]").inputValue()).toBe("@250/-2");
+    await expect.poll(async () => page.evaluate(() => document.activeElement?.getAttribute("name"))).toBe("label");
     await page.screenshot({ path: "tests/.tmp/bench-entry.png", fullPage: true });
   });
 });

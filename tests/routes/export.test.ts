@@ -187,7 +187,8 @@ describe("export downloads", () => {
     expect(response.headers["content-type"]).toBe("text/csv; charset=utf-8");
     expect(response.headers["content-disposition"]).toBe(`attachment; filename="tubeledger-readings-${today()}.csv"`);
     expect(response.body.split("\n")[0]).toBe(
-      "label,type,section,gm (uS),plate_mA,emission,pass_mark,full_scale,gas_uA,leakage_uA,shorts,heater_open,noise,date,instrument,heater_V,plate_V,screen_V,grid_V,session_id",
+      "label,type,section,gm (uS),plate_mA,emission,pass_mark,full_scale,gas_uA,leakage_uA,shorts,heater_open,noise," +
+        "reading_heater_V,reading_plate_V,reading_screen_V,reading_grid_V,date,instrument,heater_V,plate_V,screen_V,grid_V,session_id",
     );
     const records = csvRecords(response.body);
     const stored = (test.app.sqlite.prepare("SELECT count(*) AS n FROM Reading").get() as { n: number }).n;
@@ -264,7 +265,7 @@ describe("export downloads", () => {
     const fromApi = await backupOf(test.app);
     expect(withoutCreatedAt(fromPage)).toEqual(withoutCreatedAt(fromApi));
     expect(fromApi.format).toBe("tubeledger-backup");
-    expect(fromApi.version).toBe(1);
+    expect(fromApi.version).toBe(2);
     for (const layout of BACKUP_TABLES) expect(fromApi.tables[layout.name].columns).toEqual(columnNames(layout));
     expect(fromApi.tables.Tube.rows).toHaveLength(6);
     expect(fromApi.tables.Reading.rows).toHaveLength(9);
@@ -405,9 +406,9 @@ describe("restore", () => {
       const foreign = await restoreThroughForm(target.app, { file: file(JSON.stringify({ format: "spreadsheet", tables: {} })) });
       expect(foreign.statusCode).toBe(422);
       expect(foreign.body).toContain("Backup file: not a Tubeledger backup (format must be &quot;tubeledger-backup&quot;)");
-      const newer = await restoreThroughForm(target.app, { file: file(JSON.stringify({ ...backup, version: 2 })) });
+      const newer = await restoreThroughForm(target.app, { file: file(JSON.stringify({ ...backup, version: 3 })) });
       expect(newer.statusCode).toBe(422);
-      expect(newer.body).toContain("backup version 2 is not one this ledger reads (it reads version 1)");
+      expect(newer.body).toContain("backup version 3 is not one this ledger reads (it reads versions 1 and 2)");
       await unchanged();
     });
 

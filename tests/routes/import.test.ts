@@ -185,6 +185,7 @@ describe("import pages", () => {
         label: "Tube", type: "Type", section: "Section", gm: "Gm (umho)", plateMilliamps: "Ia (mA)", shorts: "Shorts", heaterOpen: "Heater open",
         emissionValue: null, emissionPassMark: null, emissionFullScale: null, gridMicroamps: null, leakageMicroamps: null, noise: null,
         gmSection2: null, plateMilliampsSection2: null, emissionSection2: null,
+        plateVolts: null, screenVolts: null, gridVolts: null, heaterVolts: null,
       },
       gmUnit: "umho",
     });

@@ -14,6 +14,11 @@
  *   the reference point states one. A heater voltage that was not recorded is taken to be at
  *   its rating (testers set it from the type); a recorded one must be near a rating when the
  *   rating is known.
+ * - A section may carry its own conditions (`SectionReading.conditions`) when the tester was
+ *   set for its type rather than for the whole sitting. They override the tube-wide conditions
+ *   field by field: a section that gives only plate volts keeps the tube-wide grid, screen and
+ *   heater volts. Setting one knob per type is the usual bench habit, and a partial override
+ *   must not silently erase what the sitting recorded for the others.
  * - Emission is always comparable: it is judged against the instrument's own pass mark.
  * - With both a comparable transconductance and an emission, the basis is transconductance and
  *   the status is the worse of the two judgements.
@@ -53,6 +58,11 @@ export interface EmissionReading {
 export interface SectionReading {
   /** 1-based, matching SectionSpec.index. */
   section: number;
+  /**
+   * Conditions this section was read at, when they differ from the tube-wide ones; each field
+   * given (not null) replaces the tube-wide value of that field (see {@link mergeTestConditions}).
+   */
+  conditions?: TestConditions | null;
   transconductanceMicroSiemens?: number | null;
   plateMilliamps?: number | null;
   emission?: EmissionReading | null;
@@ -166,6 +176,31 @@ function isRecorded(value: number | null | undefined): value is number {
   return value !== null && value !== undefined;
 }
 
+const CONDITION_FIELDS = ["heaterVolts", "plateVolts", "screenVolts", "gridVolts"] as const;
+
+/**
+ * The conditions one section was judged at: `own` field by field over `base`. A field of `own`
+ * that is null or undefined takes the value of `base`; with no `own` the result equals `base`.
+ * Never throws; numbers are not checked here.
+ * @example mergeTestConditions({ plateVolts: 100, gridVolts: 0, heaterVolts: 12.6 }, { plateVolts: 250, gridVolts: -8.5 })
+ *   // { heaterVolts: 12.6, plateVolts: 250, screenVolts: null, gridVolts: -8.5 }
+ * @example mergeTestConditions({ plateVolts: 250, gridVolts: -2 }, { plateVolts: 150 })
+ *   // { heaterVolts: null, plateVolts: 150, screenVolts: null, gridVolts: -2 }
+ */
+export function mergeTestConditions(base: TestConditions, own?: TestConditions | null): Required<TestConditions> {
+  const merged = { heaterVolts: null, plateVolts: null, screenVolts: null, gridVolts: null } as { [K in (typeof CONDITION_FIELDS)[number]]: number | null };
+  for (const field of CONDITION_FIELDS) {
+    const value = own?.[field];
+    merged[field] = isRecorded(value) ? value : (base[field] ?? null);
+  }
+  return merged;
+}
+
+/** Whether two sets of conditions are the same in every field (unrecorded equals unrecorded). */
+function sameConditions(left: TestConditions, right: TestConditions): boolean {
+  return CONDITION_FIELDS.every((field) => (left[field] ?? null) === (right[field] ?? null));
+}
+
 function volts(value: number): string {
   return formatQuantity(value, "volts");
 }
@@ -203,14 +238,15 @@ function checkOptionalNumber(value: unknown, label: string, allowNegative: boole
   return null;
 }
 
-function checkConditions(conditions: unknown): string | null {
-  if (typeof conditions !== "object" || conditions === null) return "Test conditions: missing";
+function checkConditions(conditions: unknown, prefix = ""): string | null {
+  if (typeof conditions !== "object" || conditions === null) return `${prefix}Test conditions: missing`;
   const record = conditions as Record<string, unknown>;
+  const label = (name: string) => (prefix ? `${prefix}${name.toLowerCase()}` : name);
   return (
-    checkOptionalNumber(record.heaterVolts, "Heater volts", false) ??
-    checkOptionalNumber(record.plateVolts, "Plate volts", false) ??
-    checkOptionalNumber(record.screenVolts, "Screen volts", false) ??
-    checkOptionalNumber(record.gridVolts, "Grid volts", true)
+    checkOptionalNumber(record.heaterVolts, label("Heater volts"), false) ??
+    checkOptionalNumber(record.plateVolts, label("Plate volts"), false) ??
+    checkOptionalNumber(record.screenVolts, label("Screen volts"), false) ??
+    checkOptionalNumber(record.gridVolts, label("Grid volts"), true)
   );
 }
 
@@ -222,6 +258,10 @@ function checkReading(reading: unknown): string | null {
     return `Section: '${String(section)}' is not a section number (1, 2, …)`;
   }
   const label = (field: string) => `Section ${section} ${field}`;
+  if (record.conditions !== null && record.conditions !== undefined) {
+    const conditionProblem = checkConditions(record.conditions, `Section ${section} `);
+    if (conditionProblem) return conditionProblem;
+  }
   const numberProblem =
     checkOptionalNumber(record.transconductanceMicroSiemens, label("transconductance"), false) ??
     checkOptionalNumber(record.plateMilliamps, label("plate current"), false) ??
@@ -395,7 +435,7 @@ function judgeSection(
   let notComparableReason: string | undefined;
   const measuredMicroSiemens = reading.transconductanceMicroSiemens;
   if (isRecorded(measuredMicroSiemens)) {
-    const match = findComparableReference(spec.typical, conditions, thresholds, heater);
+    const match = findComparableReference(spec.typical, mergeTestConditions(conditions, reading.conditions), thresholds, heater);
     if (match.comparable) {
       reference = match.reference;
       const referenceMicroSiemens = reference.transconductanceMicroSiemens as number;
@@ -481,7 +521,8 @@ function judgeSection(
  * on a threshold is not below it) and the emission judgement (below the pass mark ⇒ failed,
  * below pass mark + margin × full scale ⇒ worn, else good); "not-comparable" when only a
  * transconductance was read and no reference matches; "untested" when neither was read or
- * `reading` is null.
+ * `reading` is null. The reading's own `conditions`, when given, override `conditions` field by
+ * field (see {@link mergeTestConditions}).
  *
  * Returns `{ ok: false, reason }` naming the field for bad input (negative or non-finite
  * numbers, a pass mark above full scale, a reading for another section, bad thresholds).
@@ -524,16 +565,17 @@ interface BalanceFigure {
 }
 
 /** Balance of one group of same-kind sections, by the best basis every section in it has. */
-function groupBalance(results: readonly SectionResult[], readings: ReadonlyMap<number, SectionReading>): BalanceFigure | null {
+function groupBalance(results: readonly SectionResult[], readings: ReadonlyMap<number, SectionReading>, conditions: TestConditions): BalanceFigure | null {
   const sections = results.map((result) => result.section);
   const percents = results.map((result) => result.percentOfReference);
   if (percents.every((value) => value !== null)) {
     const percent = sectionBalancePercent(percents as number[]);
     if (percent !== null) return { percent, basis: "percent-of-reference", sections };
   }
-  // One evaluation has one set of conditions, so raw readings were taken under the same conditions.
+  // Raw transconductances only compare when every section was read under the same conditions.
   const raw = sections.map((section) => readings.get(section)?.transconductanceMicroSiemens ?? null);
-  if (raw.every((value) => value !== null)) {
+  const judgedAt = sections.map((section) => mergeTestConditions(conditions, readings.get(section)?.conditions));
+  if (raw.every((value) => value !== null) && judgedAt.every((each) => sameConditions(each, judgedAt[0]))) {
     const percent = sectionBalancePercent(raw as number[]);
     if (percent !== null) return { percent, basis: "transconductance", sections };
   }
@@ -552,7 +594,9 @@ function groupBalance(results: readonly SectionResult[], readings: ReadonlyMap<n
  * Balance is worked out within each group of two or more sections of the same kind (both
  * triodes of a dual triode; the two diodes of a diode-triode) as (max − min) / mean × 100,
  * on percent of reference when every section in the group has one, else on raw
- * transconductance, else on emission as percent of full scale. balancePercent is the worst
+ * transconductance (only when every section of the group was read at the same conditions), else
+ * on emission as percent of full scale. A section's own `conditions` override `conditions`
+ * field by field for that section alone. balancePercent is the worst
  * group; balanceOk is balancePercent ≤ maxImbalancePercent. Balance never changes the verdict;
  * it sets `unbalanced` and adds a reason.
  *
@@ -612,7 +656,7 @@ export function evaluateTube(
   let worstBalance: BalanceFigure | null = null;
   for (const group of groups.values()) {
     if (group.length < 2) continue;
-    const figure = groupBalance(group, readingBySection);
+    const figure = groupBalance(group, readingBySection, conditions);
     if (figure !== null && (worstBalance === null || figure.percent > worstBalance.percent)) worstBalance = figure;
   }
   const balanceOk = worstBalance === null ? null : worstBalance.percent <= thresholds.maxImbalancePercent + BOUNDARY_SLACK;

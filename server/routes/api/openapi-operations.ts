@@ -25,11 +25,11 @@ export const apiOperations: ApiOperation[] = [
   },
   {
     method: "get", path: "/api/export/readings", tag: "export", query: exportFormatQuerySchema, responseType: "text/csv",
-    summary: "Every section reading with its tube, type, session date, instrument and conditions (format=csv or json); streamed",
+    summary: "Every section reading with its tube, type, its own test conditions (reading_*_V; blank: the session's), session date, instrument and session conditions (format=csv or json); streamed",
   },
   {
     method: "get", path: "/api/backup", tag: "export", response: backupDocumentOutlineSchema,
-    summary: "Full backup: every row of every table, ids included (format tubeledger-backup, version 1)",
+    summary: "Full backup: every row of every table, ids included (format tubeledger-backup, version 2: readings carry their own test conditions; a restore still reads version 1)",
   },
   {
     method: "post", path: "/api/backup/restore", tag: "export", query: restoreQuerySchema, body: backupDocumentOutlineSchema, response: restoreSummarySchema,

@@ -5,7 +5,7 @@
 import type { FastifyInstance } from "fastify";
 import { z } from "zod";
 import { tubeInputSchema, tubeListQuerySchema, tubePatchSchema, tubeSchema } from "../../schemas/tube-schemas.ts";
-import { benchRowSchema, sessionInputSchema, sessionSchema } from "../../schemas/session-schemas.ts";
+import { benchRowSchema, sessionDetailSchema, sessionInputSchema, sessionSchema, sessionTubeSchema } from "../../schemas/session-schemas.ts";
 import { apiOperations as importExportOperations } from "./openapi-operations.ts";
 
 export interface ApiOperation {
@@ -34,8 +34,8 @@ const coreOperations: ApiOperation[] = [
   { method: "get", path: "/api/summary", summary: "Per-type counts by verdict", tag: "stock" },
   { method: "get", path: "/api/sessions", summary: "List test sessions", tag: "bench" },
   { method: "post", path: "/api/sessions", summary: "Open a test session (conditions accept units)", tag: "bench", body: sessionInputSchema, response: sessionSchema },
-  { method: "get", path: "/api/sessions/{id}", summary: "A session with every tube read and its verdict", tag: "bench" },
-  { method: "post", path: "/api/sessions/{id}/readings", summary: "Save one bench row (replaces that tube's readings in the session)", tag: "bench", body: benchRowSchema },
+  { method: "get", path: "/api/sessions/{id}", summary: "A session with every tube read, each reading with the conditions it was judged at (its own or the session's), and the verdicts", tag: "bench", response: sessionDetailSchema },
+  { method: "post", path: "/api/sessions/{id}/readings", summary: "Save one bench row (replaces that tube's readings in the session); the row may carry its own test conditions (at, or heaterVolts/plateVolts/screenVolts/gridVolts), which override the session's field by field. 201 with the tube's readings and verdict", tag: "bench", body: benchRowSchema, response: sessionTubeSchema },
 ];
 
 function jsonSchema(schema: z.ZodType) {

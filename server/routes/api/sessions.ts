@@ -9,6 +9,14 @@ import { sendFieldErrors } from "./tubes.ts";
 const toText = (body: unknown) =>
   Object.fromEntries(Object.entries((body ?? {}) as Record<string, unknown>).map(([k, v]) => [k, typeof v === "number" ? String(v) : v]));
 
+type SessionRow = Awaited<ReturnType<FastifyInstance["sessions"]["rows"]>>[number];
+
+/** One tube of a session as the API returns it (sessionTubeSchema): readings with the conditions each was judged at. */
+const tubeOfSession = (r: SessionRow) => ({
+  tubeId: r.tubeId, label: r.label, type: r.type, readings: r.readings.map(({ tube: _t, ...x }) => x),
+  verdict: r.evaluation.verdict, balancePercent: r.evaluation.balancePercent, sections: r.evaluation.sections,
+});
+
 export default async function sessionApi(app: FastifyInstance) {
   app.get("/sessions", async (request) => {
     const page = z.coerce.number().int().min(1).catch(1).parse((request.query as Record<string, unknown>).page);
@@ -30,7 +38,7 @@ export default async function sessionApi(app: FastifyInstance) {
     const session = await app.sessions.get(params.data.id);
     if (!session) return reply.code(404).send({ error: "Not Found", message: "Session not found" });
     const rows = await app.sessions.rows(session.id, 100_000);
-    return { ...session, tubes: rows.map((r) => ({ tubeId: r.tubeId, label: r.label, type: r.type, readings: r.readings.map(({ tube: _t, ...x }) => x), verdict: r.evaluation.verdict, balancePercent: r.evaluation.balancePercent, sections: r.evaluation.sections })) };
+    return { ...session, tubes: rows.map(tubeOfSession) };
   });
 
   // One bench row: the same fields as the page's entry row.
@@ -42,7 +50,6 @@ export default async function sessionApi(app: FastifyInstance) {
     const result = await app.sessions.saveBenchRow(params.data.id, parsed.data);
     if (!result.ok) return result.status === 404 ? reply.code(404).send({ error: "Not Found", message: "Session not found" }) : sendFieldErrors(reply, result.errors, result.status ?? 422);
     const rows = await app.sessions.rows(params.data.id, 100_000);
-    const row = rows.find((r) => r.tubeId === result.value.tubeId)!;
-    return reply.code(201).send({ tubeId: row.tubeId, label: row.label, type: row.type, verdict: row.evaluation.verdict, balancePercent: row.evaluation.balancePercent, sections: row.evaluation.sections });
+    return reply.code(201).send(tubeOfSession(rows.find((r) => r.tubeId === result.value.tubeId)!));
   });
 }

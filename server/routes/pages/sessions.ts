@@ -65,10 +65,10 @@ export default async function sessionPages(app: FastifyInstance) {
       }, "partials/sessions/bench.eta");
     }
     if (request.headers["hx-request"] !== "true") return redirectAfterPost(request, reply, `/sessions/${session.id}`);
-    // htmx: the bench again with a fresh entry row (keeping unit and pass mark) and the saved row on top.
+    // htmx: the bench again with a fresh entry row (keeping unit, pass mark and the row's own conditions) and the saved row on top.
     return render(request, reply, "partials/sessions/bench.eta", {
       session, units: GM_UNITS, types, rows: await app.sessions.rows(session.id), savedTubeId: result.value.tubeId,
-      entry: { values: { gmUnit: values.gmUnit, emissionPassMark: values.emissionPassMark, emissionFullScale: values.emissionFullScale }, errors: {} },
+      entry: { values: { gmUnit: values.gmUnit, emissionPassMark: values.emissionPassMark, emissionFullScale: values.emissionFullScale, at: values.at }, errors: {} },
     });
   });
 }
