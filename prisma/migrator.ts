@@ -8,6 +8,7 @@ import fs from "node:fs";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import { createRequire } from "node:module";
+import Database from "better-sqlite3";
 import { PrismaBetterSqlite3 } from "@prisma/adapter-better-sqlite3";
 import { bindMigrationAwareSqlAdapterFactory } from "@prisma/driver-adapter-utils";
 import * as bg from "@prisma/schema-engine-wasm/schema_engine_bg";
@@ -146,13 +147,46 @@ export async function createMigration(name: string, now = new Date()): Promise<s
   return folder;
 }
 
-/** Applies pending migrations to the database file; returns the names applied. */
+/**
+ * Names of the migrations in prisma/migrations that the database has not finished, read with a
+ * plain read-only connection; null when it cannot tell (no file yet, no migrations table).
+ */
+function pendingMigrations(databaseFile: string): string[] | null {
+  if (databaseFile === ":memory:" || !fs.existsSync(databaseFile)) return null;
+  let database: Database.Database | undefined;
+  try {
+    database = new Database(databaseFile, { readonly: true, fileMustExist: true });
+    const rows = database.prepare("SELECT migration_name FROM _prisma_migrations WHERE finished_at IS NOT NULL AND rolled_back_at IS NULL").all() as Array<{ migration_name: string }>;
+    const done = new Set(rows.map((row) => row.migration_name));
+    return readMigrationList().migrationDirectories.map((entry) => entry.path).filter((name) => !done.has(name));
+  } catch {
+    return null;
+  } finally {
+    database?.close();
+  }
+}
+
+/**
+ * Applies pending migrations to the database file; returns the names applied. When nothing is
+ * pending it does not start the schema engine at all, so a second process (the demo loader, a
+ * backup) can open a database that a running server holds.
+ *
+ * Throws with a plain message when the engine cannot get the database (another process holds it).
+ */
 export async function applyMigrations(databaseUrl: string): Promise<string[]> {
   const databaseFile = databaseFileFromUrl(databaseUrl);
+  if (pendingMigrations(databaseFile)?.length === 0) return [];
   if (databaseFile !== ":memory:") fs.mkdirSync(path.dirname(databaseFile), { recursive: true });
   const { engine, close } = await openEngine(databaseFile);
-  const output = (await engine.applyMigrations({ migrationsList: readMigrationList(), filters: schemaFilters } as never).finally(close)) as {
-    appliedMigrationNames: string[];
-  };
-  return output.appliedMigrationNames;
+  try {
+    const output = (await engine.applyMigrations({ migrationsList: readMigrationList(), filters: schemaFilters } as never).finally(close)) as {
+      appliedMigrationNames: string[];
+    };
+    return output.appliedMigrationNames;
+  } catch (error) {
+    if (/SocketTimeout|database is locked|busy/i.test(String(error))) {
+      throw new Error(`could not apply migrations to ${databaseFile}: another process holds the database (stop the server, then try again)`, { cause: error });
+    }
+    throw error;
+  }
 }
