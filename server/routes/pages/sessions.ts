@@ -3,6 +3,7 @@ import type { FastifyInstance } from "fastify";
 import { z } from "zod";
 import { idParamSchema, parseWith } from "../../schemas/form-parsing.ts";
 import { benchRowSchema, sessionInputSchema, GM_UNITS } from "../../schemas/session-schemas.ts";
+import { describeConditions } from "../../verdicts/verdict-service.ts";
 import { render, redirectAfterPost } from "../render.ts";
 
 const lookupQuerySchema = z.object({ label: z.string().trim().max(60).default("") });
@@ -34,7 +35,7 @@ export default async function sessionPages(app: FastifyInstance) {
     if (!session) return reply.callNotFound();
     const rows = await app.sessions.rows(session.id);
     return render(request, reply, "pages/sessions/show.eta", {
-      title: `Session ${session.date}`, nav: "bench", session, rows, units: GM_UNITS,
+      title: `Session ${session.date}`, nav: "bench", session, conditionsText: describeConditions(session), rows, units: GM_UNITS,
       entry: { values: { gmUnit: "uS", emissionFullScale: "100" }, errors: {} }, types: app.catalog.list().map((t) => t.designation),
     });
   });
@@ -60,7 +61,7 @@ export default async function sessionPages(app: FastifyInstance) {
     if (!result.ok) {
       reply.code("status" in result && result.status ? result.status : 422);
       return render(request, reply, "pages/sessions/show.eta", {
-        title: `Session ${session.date}`, nav: "bench", session, rows: await app.sessions.rows(session.id), units: GM_UNITS,
+        title: `Session ${session.date}`, nav: "bench", session, conditionsText: describeConditions(session), rows: await app.sessions.rows(session.id), units: GM_UNITS,
         entry: { values, errors: result.errors, needsCreate: result.needsCreate }, types,
       }, "partials/sessions/bench.eta");
     }
