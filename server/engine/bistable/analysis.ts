@@ -73,7 +73,9 @@ function buildState(model: CircuitModel, equilibrium: Equilibrium, cutoffFractio
 }
 
 function format(value: number, digits = 2): string {
-  return value.toFixed(digits);
+  const text = value.toFixed(digits);
+  // A value that rounds to zero prints as 0, not "-0.00".
+  return Number(text) === 0 ? (0).toFixed(digits) : text;
 }
 
 function sideOrder(state: BistableState): number {

@@ -113,6 +113,22 @@ interface ForcedNetwork {
   extraCathodeAmps: number;
 }
 
+/** Side A's grid and screen offsets and currents at one cathode voltage. */
+interface SideAAtCathode {
+  cathode: number;
+  u: number;
+  x: number;
+  gridAmps: number;
+  screenAmps: number;
+}
+
+/** Side A's plate current tried inside a chain solve, with its network and model current. */
+interface SolvedTrialA {
+  current: number;
+  network: ForcedNetwork;
+  modelPlateAmpsA: number;
+}
+
 type DrivenGridSolver = (theveninVolts: number, theveninOhms: number) => DrivenGrid;
 
 type NormalizedCathode =
@@ -138,20 +154,46 @@ function clampedGridForPowerLaw(openVolts: number, scaledPerveance: number): num
   throw new SolverError(`grid clamp: no convergence in ${INNER_ITERATION_CAP} iterations`);
 }
 
-/** Solves y + a·y^e = w (w > 0, e > 1) for y ≥ 0 by Newton from an upper bound (convex, increasing). */
-function clampedPowerLaw(openValue: number, scaled: number, exponent: number): number {
+/**
+ * Solves y + a·y^e = w (w > 0, e > 1) for y ≥ 0 by Newton (convex, increasing). It starts from
+ * `start` when that lies in (0, w) — the previous root of a nearby solve, so a few steps
+ * suffice — else from an upper bound (each term alone reaches w). From above the iterates
+ * fall monotonically; from below the first step lands above the root (the tangent of a convex
+ * function lies under it), so either way they converge from above.
+ */
+function clampedPowerLaw(openValue: number, scaled: number, exponent: number, start: number): number {
   if (!(openValue > 0)) return openValue;
   if (!(scaled > 0)) return openValue;
-  let y = Math.min(openValue, Math.pow(openValue / scaled, 1 / exponent));
+  let y = start > 0 && start < openValue ? start : Math.min(openValue, Math.pow(openValue / scaled, 1 / exponent));
   for (let iteration = 0; iteration < INNER_ITERATION_CAP; iteration++) {
-    const power = Math.pow(y, exponent - 1);
+    // exp∘log is about twice as fast as Math.pow here and as accurate as the tolerance needs.
+    const power = Math.exp((exponent - 1) * Math.log(y));
     const value = y + scaled * power * y - openValue;
     const slope = 1 + scaled * exponent * power;
     const step = value / slope;
-    y -= step;
+    // w itself is an upper bound: a step from below never needs to go past it.
+    y = Math.min(openValue, y - step);
     if (Math.abs(step) <= GRID_ROOT_RELATIVE_TOLERANCE * y) return y;
   }
   throw new SolverError(`screen node: no convergence in ${INNER_ITERATION_CAP} iterations`);
+}
+
+/** The last two screen-node solves of one side in the clamp's variables (open value w, root y). */
+interface ScreenRootMemory {
+  open: number;
+  root: number;
+  earlierOpen: number;
+  earlierRoot: number;
+}
+
+/**
+ * A starting point for the next screen-node solve at open value w: on the secant through the
+ * last two solves (y(w) is smooth and increasing), or the last root when they coincide; 0 (none) before any.
+ */
+function predictedScreenRoot(memory: ScreenRootMemory, open: number): number {
+  const spacing = memory.open - memory.earlierOpen;
+  if (!(spacing !== 0 && Number.isFinite(spacing))) return memory.root;
+  return memory.root + ((memory.root - memory.earlierRoot) * (open - memory.open)) / spacing;
 }
 
 function requirePositiveOhms(value: number, name: string): void {
@@ -177,11 +219,12 @@ function normalizeSide(side: BistableSide, label: string): SideModel {
   };
 }
 
+function nonNegative(value: number, name: string): void {
+  if (!(value >= 0) || !Number.isFinite(value)) throw new RangeError(`${name} must be zero or a positive number of ohms`);
+}
+
 function normalizeCathode(circuit: BistableCircuit): NormalizedCathode {
   const cathode = circuit.cathode ?? { kind: "grounded" };
-  const nonNegative = (value: number, name: string) => {
-    if (!(value >= 0) || !Number.isFinite(value)) throw new RangeError(`${name} must be zero or a positive number of ohms`);
-  };
   if (cathode.kind === "common") {
     nonNegative(cathode.ohms, "common cathode resistor");
     return cathode.ohms === 0 ? { kind: "grounded" } : cathode;
@@ -213,9 +256,31 @@ export class CircuitModel {
   readonly cathode: NormalizedCathode;
   /** Highest voltage any electrode can see; bounds the cathode solves. */
   private readonly highestSupplyVolts: number;
-  private plateCurrentGuessA: number | undefined;
-  /** Cathode voltage above the forced-current part at the last cathode solve. */
-  private cathodeExtraGuessVolts: number | undefined;
+  /** The last cathode solve: its forced voltage (undefined before any), result, and the slope of h it ended on. */
+  private settledForcedVolts: number | undefined;
+  private settledCathodeVolts = 0;
+  private settleSlope = 1;
+  /** Trials inside the current cathode solve: how many, and the last two with their residuals. */
+  private settleTrials = 0;
+  private latestSettleVolts = Number.NaN;
+  private latestSettleResidual = Number.NaN;
+  private previousSettleVolts = Number.NaN;
+  private previousSettleResidual = Number.NaN;
+  /** Points already chained, by injected current, with side A's solved plate current. */
+  private readonly chained = new Map<number, { point: ChainPoint; plateAmpsA: number }>();
+  /** The injected currents in `chained`, ascending. */
+  private readonly chainedCurrents: number[] = [];
+  /** The last two trials of side A's plate current inside the current chain solve. */
+  private latestTrialA: SolvedTrialA | undefined;
+  private previousTrialA: SolvedTrialA | undefined;
+  /** The last two screen-node solves of each side, from which the next one's start is predicted. */
+  private readonly screenRootsA: ScreenRootMemory = { open: Number.NaN, root: 0, earlierOpen: Number.NaN, earlierRoot: 0 };
+  private readonly screenRootsB: ScreenRootMemory = { open: Number.NaN, root: 0, earlierOpen: Number.NaN, earlierRoot: 0 };
+  /** The last screen-node solve under the power law: its side, grid and screen offsets, and current. */
+  private solvedScreenSide: SideModel | null = null;
+  private solvedScreenGridVolts = Number.NaN;
+  private solvedScreenVolts = Number.NaN;
+  private solvedScreenAmps = 0;
 
   constructor(circuit: BistableCircuit) {
     if (!(circuit.bPlusVolts > 0) || !Number.isFinite(circuit.bPlusVolts)) throw new RangeError("bPlusVolts must be positive");
@@ -245,8 +310,16 @@ export class CircuitModel {
     return side.scale * side.tube.plateAmps(plateVolts, gridVolts, screenVolts);
   }
 
+  /**
+   * Screen current with the side's scale. At the point the last screen-node solve returned, the
+   * current that solve implied (equal to the law there within the solve's tolerance) is reused.
+   */
   screenAmps(side: SideModel, gridVolts: number, screenVolts: number): number {
-    return side.screen === null ? 0 : side.scale * side.tube.screenAmps(gridVolts, screenVolts);
+    if (side.screen === null) return 0;
+    if (side === this.solvedScreenSide && gridVolts === this.solvedScreenGridVolts && screenVolts === this.solvedScreenVolts) {
+      return this.solvedScreenAmps;
+    }
+    return side.scale * side.tube.screenAmps(gridVolts, screenVolts);
   }
 
   gridAmps(side: SideModel, gridVolts: number): number {
@@ -274,21 +347,37 @@ export class CircuitModel {
     );
   }
 
-  /** Screen-to-cathode voltage x with x + seriesOhms·Ig2(u, x) = openVolts. */
+  /**
+   * Screen-to-cathode voltage x with x + seriesOhms·Ig2(u, x) = openVolts. Under the screen
+   * power law the current at the solved x is kept (see screenAmps): at the root it is
+   * (openVolts − x)/seriesOhms, which spares the caller one more evaluation of the law.
+   */
   screenOffset(side: SideModel, u: number, seriesOhms: number, openVolts: number): number {
     if (side.screen === null) return 0;
     if (seriesOhms === 0) return openVolts;
-    const currentAtOpen = this.screenAmps(side, u, openVolts);
-    if (currentAtOpen <= 0) return openVolts;
     const law = side.tube.screenPowerLaw;
     if (law !== undefined) {
-      // With y = x/µ + min(u, 0) the node reads y + a·y^ex = open/µ + min(u, 0): the convex clamp shape again.
       const gridPart = Math.min(u, 0);
+      const base = openVolts / law.mu + gridPart;
+      // Under the power law the current is zero exactly when its base is not positive.
+      if (!(base > 0)) return openVolts;
+      // With y = x/µ + min(u, 0) the node reads y + a·y^ex = open/µ + min(u, 0): the convex clamp shape again.
       const scaled = (seriesOhms * side.scale * law.ampsPerVoltPower) / law.mu;
-      const y = clampedPowerLaw(openVolts / law.mu + gridPart, scaled, law.exponent);
+      const memory = side === this.a ? this.screenRootsA : this.screenRootsB;
+      const y = clampedPowerLaw(base, scaled, law.exponent, predictedScreenRoot(memory, base));
+      memory.earlierOpen = memory.open;
+      memory.earlierRoot = memory.root;
+      memory.open = base;
+      memory.root = y;
       const x = law.mu * (y - gridPart);
-      if (x > 0) return x;
+      if (x > 0) {
+        // y + a·y^ex = base at the root, so the current a·y^ex·µ/R is (base − y)·µ/R, with no power to take.
+        this.rememberScreenAmps(side, u, x, Math.max(0, ((base - y) * law.mu) / seriesOhms));
+        return x;
+      }
     }
+    const currentAtOpen = this.screenAmps(side, u, openVolts);
+    if (currentAtOpen <= 0) return openVolts;
     const low = openVolts - seriesOhms * currentAtOpen;
     const atLow = low + seriesOhms * this.screenAmps(side, u, low) - openVolts;
     if (atLow >= 0) return low;
@@ -302,6 +391,13 @@ export class CircuitModel {
       INNER_ITERATION_CAP,
       "screen node",
     );
+  }
+
+  private rememberScreenAmps(side: SideModel, u: number, x: number, amps: number): void {
+    this.solvedScreenSide = side;
+    this.solvedScreenGridVolts = u;
+    this.solvedScreenVolts = x;
+    this.solvedScreenAmps = amps;
   }
 
   /** Screen offset for a cathode held at `cathodeVolts`. */
@@ -449,8 +545,16 @@ export class CircuitModel {
     // Unclamped driven grid: the divider is a plain resistor to the rail, so the node is linear.
     const linearPlate =
       (this.bPlusVolts * loadConductance - plateAmps + rail / dividerTotal) / (loadConductance + 1 / dividerTotal);
-    const linearDriven = this.drivenGridB(rail + (linearPlate - rail) * dividerRatio, theveninOhms, cathodeB, cathodeOhmsB, injectedAmps);
-    if (linearDriven.gridAmps === 0) return { plate: linearPlate, driven: linearDriven };
+    const linearGridVolts = this.unclampedGridB(plateAmps);
+    // With B's cathode held and the power grid law, B's grid draws exactly when the unclamped grid
+    // is above its cathode; then the clamped form below is the answer and the unclamped one is not needed.
+    const perveanceB = this.b.tube.gridPerveanceAmpsPerVolt1p5;
+    const drawsSurely = cathodeOhmsB === 0 && perveanceB !== undefined && perveanceB > 0 && linearGridVolts > cathodeB;
+    let linearDriven: DrivenGrid | undefined;
+    if (!drawsSurely) {
+      linearDriven = this.drivenGridB(linearGridVolts, theveninOhms, cathodeB, cathodeOhmsB, injectedAmps);
+      if (linearDriven.gridAmps === 0) return { plate: linearPlate, driven: linearDriven };
+    }
     if (cathodeOhmsB === 0 || this.b.screen === null) {
       // Eliminating the plate leaves c_lin − c1·G − Ig = 0 at B's grid G. With B's cathode at
       // K0 + Rk·Ig (K0 held, or Rk·t for its own resistor) that is u + (Rk + 1/c1)·Ig(u) = c_lin/c1 − K0:
@@ -478,7 +582,10 @@ export class CircuitModel {
       (low - this.drivenGridB(rail + (low - rail) * dividerRatio, theveninOhms, cathodeB, cathodeOhmsB, injectedAmps).grid) /
         side.couplingOhms;
     const atHigh =
-      (this.bPlusVolts - linearPlate) * loadConductance - plateAmps - (linearPlate - linearDriven.grid) / side.couplingOhms;
+      (this.bPlusVolts - linearPlate) * loadConductance -
+      plateAmps -
+      (linearPlate - (linearDriven ?? this.drivenGridB(linearGridVolts, theveninOhms, cathodeB, cathodeOhmsB, injectedAmps)).grid) /
+        side.couplingOhms;
     const plate =
       atHigh >= 0
         ? linearPlate
@@ -503,6 +610,17 @@ export class CircuitModel {
       plate,
       driven: this.drivenGridB(rail + (plate - rail) * dividerRatio, theveninOhms, cathodeB, cathodeOhmsB, injectedAmps),
     };
+  }
+
+  /** B's grid with A's plate current forced and B's grid drawing nothing: the divider alone sets it. */
+  private unclampedGridB(plateAmpsA: number): number {
+    const side = this.a;
+    const rail = this.negativeRailVolts;
+    const dividerTotal = side.couplingOhms + side.gridReturnOhms;
+    const loadConductance = 1 / side.plateLoadOhms;
+    const linearPlate =
+      (this.bPlusVolts * loadConductance - plateAmpsA + rail / dividerTotal) / (loadConductance + 1 / dividerTotal);
+    return rail + (linearPlate - rail) * (side.gridReturnOhms / dividerTotal);
   }
 
   /**
@@ -539,19 +657,25 @@ export class CircuitModel {
     theveninVolts: number,
     theveninOhms: number,
     cathodeA: number,
+    solvedSideA?: SideAAtCathode,
   ): ForcedNetwork {
-    const a = this.a;
     const cathode = this.cathode;
-    const uA = this.gridOffset(a, theveninVolts - cathodeA, theveninOhms);
-    const xA = this.screenOffsetFixedCathode(a, uA, cathodeA);
+    const sideA = solvedSideA ?? this.sideAAtCathode(theveninVolts, theveninOhms, cathodeA);
+    const { u: uA, x: xA, gridAmps: gridAmpsA, screenAmps: screenAmpsA } = sideA;
     const cathodeB = cathode.kind === "common" ? cathodeA : 0;
     const cathodeOhmsB = cathode.kind === "separate" ? cathode.sideBOhms : 0;
     const { plate, driven } = this.plateForced(plateAmpsA, cathodeB, cathodeOhmsB, injectedAmps);
-    const gridAmpsA = this.gridAmps(a, uA);
-    const screenAmpsA = this.screenAmps(a, uA, xA);
     const extraCathodeAmps =
       gridAmpsA + screenAmpsA + (cathode.kind === "common" ? driven.gridAmps + driven.screenAmps : 0);
     return { cathodeA, uA, xA, gridAmpsA, screenAmpsA, plateA: plate, drivenB: driven, extraCathodeAmps };
+  }
+
+  /** Side A's grid (fed by the Thevenin source) and screen with its cathode at `cathodeVolts`. */
+  private sideAAtCathode(theveninVolts: number, theveninOhms: number, cathodeVolts: number): SideAAtCathode {
+    const a = this.a;
+    const u = this.gridOffset(a, theveninVolts - cathodeVolts, theveninOhms);
+    const x = this.screenOffsetFixedCathode(a, u, cathodeVolts);
+    return { cathode: cathodeVolts, u, x, gridAmps: this.gridAmps(a, u), screenAmps: this.screenAmps(a, u, x) };
   }
 
   /** The network with both plate currents forced; the cathode settles around them. */
@@ -560,32 +684,40 @@ export class CircuitModel {
     const ohms = cathode.kind === "common" ? cathode.ohms : cathode.kind === "separate" ? cathode.sideAOhms : 0;
     if (ohms === 0) return this.networkAtCathode(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, 0);
     const forcedVolts = ohms * (plateAmpsA + (cathode.kind === "common" ? injectedAmps : 0));
+    if (cathode.kind === "common" && this.b.screen === null) {
+      const shared = this.sharedCathodeNetwork(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts, ohms);
+      if (shared !== null) return shared;
+    }
     const atForced = this.networkAtCathode(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts);
     if (atForced.extraCathodeAmps === 0) return atForced;
-    if (this.a.screen === null && this.b.screen === null) {
+    if (this.b.screen === null) {
       // Usually one grid draws and the other is below its cathode. Then the cathode is
       // forced + Rk·Ig of that grid, and its clamp equation absorbs Rk as extra series resistance.
-      if (atForced.gridAmpsA > 0 && atForced.drivenB.gridAmps === 0) {
-        const uA = this.gridOffset(this.a, theveninVolts - forcedVolts, theveninOhms + ohms);
-        const settled = this.networkAtCathode(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts + ohms * this.gridAmps(this.a, uA));
+      if (this.a.screen === null && atForced.gridAmpsA > 0 && atForced.drivenB.gridAmps === 0) {
+        const settled = this.settleOnGridA(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts, ohms);
         if (settled.extraCathodeAmps === settled.gridAmpsA) return settled;
-      } else if (cathode.kind === "common" && atForced.gridAmpsA === 0 && atForced.drivenB.gridAmps > 0) {
-        const { c1, cLinear } = this.plateNodeConstants(plateAmpsA);
-        const uB = this.gridOffset(this.b, cLinear / c1 - forcedVolts, ohms + 1 / c1);
-        const settled = this.networkAtCathode(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts + ohms * this.gridAmps(this.b, uB));
-        if (settled.gridAmpsA === 0) return settled;
+      } else if (
+        cathode.kind === "common" &&
+        atForced.gridAmpsA === 0 &&
+        atForced.screenAmpsA === 0 &&
+        atForced.drivenB.gridAmps > 0
+      ) {
+        const settled = this.settleOnGridB(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts, ohms);
+        if (settled.gridAmpsA === 0 && settled.screenAmpsA === 0) return settled;
       }
     }
     const high = forcedVolts + ohms * atForced.extraCathodeAmps;
     if (this.b.screen === null && atForced.drivenB.gridAmps === 0) {
-      // Only side A's own grid and screen draw extra: settle the cathode on A's laws alone (cheap),
-      // then check that B's grid stayed below its cathode.
-      const settledVolts = this.settleCathode(forcedVolts, high, -ohms * atForced.extraCathodeAmps, (volts) => {
-        const u = this.gridOffset(this.a, theveninVolts - volts, theveninOhms);
-        const x = this.screenOffsetFixedCathode(this.a, u, volts);
-        return volts - forcedVolts - ohms * (this.gridAmps(this.a, u) + this.screenAmps(this.a, u, x));
-      });
-      const settled = this.networkAtCathode(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, settledVolts);
+      const settled = this.settleOnSideA(
+        injectedAmps,
+        plateAmpsA,
+        theveninVolts,
+        theveninOhms,
+        forcedVolts,
+        ohms,
+        high,
+        -ohms * atForced.extraCathodeAmps,
+      );
       if (settled.drivenB.gridAmps === 0) return settled;
     }
     const cathodeVolts = this.settleCathode(forcedVolts, high, -ohms * atForced.extraCathodeAmps, (volts) =>
@@ -595,26 +727,191 @@ export class CircuitModel {
   }
 
   /**
+   * The shared cathode with a triode on side B, its branch chosen by cheap tests at the forced
+   * cathode (the lowest the cathode can sit) instead of the whole network there: B's grid draws
+   * exactly when its unclamped grid is above that cathode, A's grid when its open-circuit offset is
+   * positive, A's screen when its power-law base at the open screen voltage is. Returns null
+   * (solve in full) without both grid laws and A's screen law, when both sides draw, or when a
+   * settled network fails its check.
+   */
+  private sharedCathodeNetwork(
+    injectedAmps: number,
+    plateAmpsA: number,
+    theveninVolts: number,
+    theveninOhms: number,
+    forcedVolts: number,
+    ohms: number,
+  ): ForcedNetwork | null {
+    const a = this.a;
+    const perveanceA = a.tube.gridPerveanceAmpsPerVolt1p5;
+    const perveanceB = this.b.tube.gridPerveanceAmpsPerVolt1p5;
+    const screenLaw = a.tube.screenPowerLaw;
+    if (perveanceA === undefined || !(perveanceB !== undefined && perveanceB > 0)) return null;
+    if (a.screen !== null && screenLaw === undefined) return null;
+    const gridOpenA = theveninVolts - forcedVolts;
+    const gridDrawsA = gridOpenA > 0 && perveanceA > 0;
+    // A's grid-to-cathode voltage counts in the screen law only below the cathode, where it equals the open voltage.
+    const screenOpenA = a.screen === null ? 0 : (a.screen.kind === "fixed" ? a.screen.volts : a.screen.supplyVolts) - forcedVolts;
+    const screenDrawsA = screenLaw !== undefined && screenOpenA / screenLaw.mu + Math.min(gridOpenA, 0) > 0;
+    const gridDrawsB = this.unclampedGridB(plateAmpsA) > forcedVolts;
+    if (gridDrawsB) {
+      if (gridDrawsA || screenDrawsA) return null;
+      const settled = this.settleOnGridB(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts, ohms);
+      return settled.gridAmpsA === 0 && settled.screenAmpsA === 0 ? settled : null;
+    }
+    if (!gridDrawsA && !screenDrawsA) return this.networkAtCathode(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts);
+    if (a.screen === null) {
+      const settled = this.settleOnGridA(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts, ohms);
+      if (settled.extraCathodeAmps === settled.gridAmpsA) return settled;
+    }
+    // An upper bound on A's grid and screen currents at the forced cathode bounds the cathode from
+    // above without solving A there: the grid's open voltage over its source resistance, the
+    // screen's over its resistor (or its current at a fixed voltage with the grid at most at the cathode).
+    const gridBoundAmps = gridDrawsA ? gridOpenA / theveninOhms : 0;
+    const screen = a.screen;
+    const screenBoundAmps =
+      screen === null || !screenDrawsA
+        ? 0
+        : screen.kind === "resistor"
+          ? screenOpenA / screen.ohms
+          : this.screenAmps(a, Math.min(gridOpenA, 0), screenOpenA);
+    const settled = this.settleOnSideA(
+      injectedAmps,
+      plateAmpsA,
+      theveninVolts,
+      theveninOhms,
+      forcedVolts,
+      ohms,
+      forcedVolts + ohms * (gridBoundAmps + screenBoundAmps),
+      undefined,
+    );
+    return settled.drivenB.gridAmps === 0 ? settled : null;
+  }
+
+  /** Only A's grid draws (a triode A): the cathode is forced + Rk·Ig_A, Rk adding to the clamp's series resistance. */
+  private settleOnGridA(
+    injectedAmps: number,
+    plateAmpsA: number,
+    theveninVolts: number,
+    theveninOhms: number,
+    forcedVolts: number,
+    ohms: number,
+  ): ForcedNetwork {
+    const uA = this.gridOffset(this.a, theveninVolts - forcedVolts, theveninOhms + ohms);
+    return this.networkAtCathode(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts + ohms * this.gridAmps(this.a, uA));
+  }
+
+  /**
+   * Side A draws nothing at the lowest cathode, and its grid and screen currents only fall as the
+   * cathode rises, so B's grid alone sets the shared cathode (A's screen included).
+   */
+  private settleOnGridB(
+    injectedAmps: number,
+    plateAmpsA: number,
+    theveninVolts: number,
+    theveninOhms: number,
+    forcedVolts: number,
+    ohms: number,
+  ): ForcedNetwork {
+    const { c1, cLinear } = this.plateNodeConstants(plateAmpsA);
+    const uB = this.gridOffset(this.b, cLinear / c1 - forcedVolts, ohms + 1 / c1);
+    return this.networkAtCathode(injectedAmps, plateAmpsA, theveninVolts, theveninOhms, forcedVolts + ohms * this.gridAmps(this.b, uB));
+  }
+
+  /**
+   * Only side A's own grid and screen draw extra: settles the cathode on A's laws alone (cheap);
+   * the caller checks that B's grid stayed below its cathode. `atForced` is h at the forced
+   * cathode when already known. Side A at each trial cathode is kept, so the settled one is not solved again.
+   */
+  private settleOnSideA(
+    injectedAmps: number,
+    plateAmpsA: number,
+    theveninVolts: number,
+    theveninOhms: number,
+    forcedVolts: number,
+    ohms: number,
+    high: number,
+    atForced: number | undefined,
+  ): ForcedNetwork {
+    const tried: SideAAtCathode[] = [];
+    const settledVolts = this.settleCathode(forcedVolts, high, atForced, (volts) => {
+      const sideA = this.sideAAtCathode(theveninVolts, theveninOhms, volts);
+      tried.push(sideA);
+      return volts - forcedVolts - ohms * (sideA.gridAmps + sideA.screenAmps);
+    });
+    return this.networkAtCathode(
+      injectedAmps,
+      plateAmpsA,
+      theveninVolts,
+      theveninOhms,
+      settledVolts,
+      tried.find((sideA) => sideA.cathode === settledVolts),
+    );
+  }
+
+  /**
    * Root of h(K) = K − forced − Rk·extra(K) on [forced, high]. h rises with slope ≥ 1 (grid and
    * screen currents only fall as the cathode rises), so from any trial K the root lies between
-   * K and K − h(K); the last solve's extra voltage is a good trial.
+   * K and K − h(K). The trial follows the last solve along the slope it ended on: with the
+   * same source (one chain solve), K − Rk·extra(K) is one function and only `forced` moves.
    */
-  private settleCathode(forcedVolts: number, high: number, atForced: number, residual: (volts: number) => number): number {
-    const trial = Math.min(high, forcedVolts + (this.cathodeExtraGuessVolts ?? 0));
-    const atTrial = trial === forcedVolts ? atForced : residual(trial);
+  private settleCathode(
+    forcedVolts: number,
+    high: number,
+    knownAtForced: number | undefined,
+    residual: (volts: number) => number,
+  ): number {
+    const lastForced = this.settledForcedVolts;
+    const predicted =
+      lastForced === undefined ? forcedVolts : this.settledCathodeVolts + (forcedVolts - lastForced) / this.settleSlope;
+    const trial = Math.min(high, Math.max(forcedVolts, predicted));
+    this.settleTrials = 0;
+    let atForced = knownAtForced;
+    if (trial === forcedVolts) atForced ??= this.settleResidual(residual, forcedVolts);
+    const atTrial = trial === forcedVolts ? (atForced as number) : this.settleResidual(residual, trial);
     let cathodeVolts = trial;
     if (Math.abs(atTrial) > 0.1 * VOLTS_TOLERANCE) {
       const other = Math.min(high, Math.max(forcedVolts, trial - atTrial));
-      const atOther = other === forcedVolts ? atForced : residual(other);
+      if (other === forcedVolts) atForced ??= this.settleResidual(residual, forcedVolts);
+      const atOther = other === forcedVolts ? (atForced as number) : this.settleResidual(residual, other);
       let [low, up, atLow, atUp] = trial < other ? [trial, other, atTrial, atOther] : [other, trial, atOther, atTrial];
       if (!(atLow <= 0 && atUp >= 0)) {
         // Rounding broke the slope bound: fall back to the full bracket.
-        [low, up, atLow, atUp] = [forcedVolts, high, atForced, residual(high)];
+        atForced ??= this.settleResidual(residual, forcedVolts);
+        [low, up, atLow, atUp] = [forcedVolts, high, atForced, this.settleResidual(residual, high)];
       }
-      cathodeVolts = brentRoot(residual, low, up, atLow, atUp, VOLTS_TOLERANCE, INNER_ITERATION_CAP, "cathode node");
+      // The slope bound also makes a residual below the trial's acceptance level a cathode within tolerance.
+      cathodeVolts = brentRoot(
+        (volts) => this.settleResidual(residual, volts),
+        low,
+        up,
+        atLow,
+        atUp,
+        VOLTS_TOLERANCE,
+        INNER_ITERATION_CAP,
+        "cathode node",
+        0.1 * VOLTS_TOLERANCE,
+      );
     }
-    this.cathodeExtraGuessVolts = cathodeVolts - forcedVolts;
+    if (this.settleTrials >= 2 && this.latestSettleVolts !== this.previousSettleVolts) {
+      const slope =
+        (this.latestSettleResidual - this.previousSettleResidual) / (this.latestSettleVolts - this.previousSettleVolts);
+      if (Number.isFinite(slope)) this.settleSlope = Math.max(1, slope);
+    }
+    this.settledForcedVolts = forcedVolts;
+    this.settledCathodeVolts = cathodeVolts;
     return cathodeVolts;
+  }
+
+  /** h at one trial cathode, keeping the last two trials for the slope the next settle starts along. */
+  private settleResidual(residual: (volts: number) => number, volts: number): number {
+    const value = residual(volts);
+    this.previousSettleVolts = this.latestSettleVolts;
+    this.previousSettleResidual = this.latestSettleResidual;
+    this.latestSettleVolts = volts;
+    this.latestSettleResidual = value;
+    this.settleTrials++;
+    return value;
   }
 
   /** h(K) = K − forced − Rk·(grid and screen currents through the resistor at K). */
@@ -657,15 +954,22 @@ export class CircuitModel {
     );
   }
 
-  /** Every node and both model plate currents with both plate currents forced. */
-  pointAt(injectedAmps: number, plateAmpsA: number): ChainPoint & { residualAmpsA: number } {
+  /**
+   * Every node and both model plate currents with both plate currents forced. `solved` is the
+   * network and side A's model plate current already found for exactly these two currents.
+   */
+  pointAt(
+    injectedAmps: number,
+    plateAmpsA: number,
+    solved?: SolvedTrialA,
+  ): ChainPoint & { residualAmpsA: number } {
     const { a, b } = this;
     const { openPlateB, theveninVolts, theveninOhms } = this.gridSourceA(injectedAmps);
-    const network = this.networkAt(injectedAmps, plateAmpsA, theveninVolts, theveninOhms);
+    const network = solved?.network ?? this.networkAt(injectedAmps, plateAmpsA, theveninVolts, theveninOhms);
     const { drivenB } = network;
     const gridA = network.uA + network.cathodeA;
     const plateB = (openPlateB * b.couplingOhms + gridA * b.plateLoadOhms) / (b.couplingOhms + b.plateLoadOhms);
-    const modelPlateAmpsA = this.plateAmpsAOf(network);
+    const modelPlateAmpsA = solved?.modelPlateAmpsA ?? this.plateAmpsAOf(network);
     const modelPlateAmpsB = this.plateAmps(b, plateB - drivenB.cathode, drivenB.u, drivenB.x);
     return {
       injectedAmps,
@@ -692,20 +996,92 @@ export class CircuitModel {
     };
   }
 
-  /** Every node voltage and current when side B's plate current is forced to `injectedAmps`. */
+  /** Position of `injectedAmps` in the ascending chainedCurrents (the first entry not below it). */
+  private chainedIndex(injectedAmps: number): number {
+    const currents = this.chainedCurrents;
+    let low = 0;
+    let high = currents.length;
+    while (low < high) {
+      const middle = (low + high) >>> 1;
+      if (currents[middle] < injectedAmps) low = middle + 1;
+      else high = middle;
+    }
+    return low;
+  }
+
+  /**
+   * Where the search for side A's current starts: on the line through the two chained points
+   * nearest the new injected current (the sweep's last two samples, a root search's bracket, the
+   * root beside a return-ratio step), or at the nearest one's current when the other is more
+   * than four times as far away. 0 before anything is chained.
+   */
+  private startingPlateCurrentA(injectedAmps: number): number {
+    const currents = this.chainedCurrents;
+    const index = this.chainedIndex(injectedAmps);
+    let nearest = -1;
+    let second = -1;
+    for (let candidate = Math.max(0, index - 2); candidate < Math.min(currents.length, index + 2); candidate++) {
+      const distance = Math.abs(currents[candidate] - injectedAmps);
+      if (nearest < 0 || distance < Math.abs(currents[nearest] - injectedAmps)) {
+        second = nearest;
+        nearest = candidate;
+      } else if (second < 0 || distance < Math.abs(currents[second] - injectedAmps)) {
+        second = candidate;
+      }
+    }
+    if (nearest < 0) return 0;
+    const nearCurrent = currents[nearest];
+    const nearAmpsA = (this.chained.get(nearCurrent) as { plateAmpsA: number }).plateAmpsA;
+    if (second < 0) return nearAmpsA;
+    const secondCurrent = currents[second];
+    const spacing = nearCurrent - secondCurrent;
+    // A line through points far apart on this scale (a kink may lie between them) is worse than the nearest point.
+    if (Math.abs(injectedAmps - secondCurrent) > 4 * Math.abs(injectedAmps - nearCurrent)) return nearAmpsA;
+    const secondAmpsA = (this.chained.get(secondCurrent) as { plateAmpsA: number }).plateAmpsA;
+    return nearAmpsA + ((nearAmpsA - secondAmpsA) * (injectedAmps - nearCurrent)) / spacing;
+  }
+
+  /**
+   * q(i) = i − Ip_A at the network for both plate currents forced. The last two trials are
+   * kept: the root search returns one of them as a rule, whose network then need not be solved again.
+   */
+  private excessA(injectedAmps: number, current: number, theveninVolts: number, theveninOhms: number): number {
+    const network = this.networkAt(injectedAmps, current, theveninVolts, theveninOhms);
+    const modelPlateAmpsA = this.plateAmpsAOf(network);
+    this.previousTrialA = this.latestTrialA;
+    this.latestTrialA = { current, network, modelPlateAmpsA };
+    return current - modelPlateAmpsA;
+  }
+
+  /** The kept trial of side A's current at exactly `current`, if one of the last two was there. */
+  private keptTrialA(current: number): SolvedTrialA | undefined {
+    if (this.latestTrialA?.current === current) return this.latestTrialA;
+    if (this.previousTrialA?.current === current) return this.previousTrialA;
+    return undefined;
+  }
+
+  /**
+   * Every node voltage and current when side B's plate current is forced to `injectedAmps`.
+   * A current already chained in this model returns the same point again (the sweep, its
+   * refinements, the root search and the root check meet the same currents).
+   */
   chain(injectedAmps: number): ChainPoint {
+    const known = this.chained.get(injectedAmps);
+    if (known !== undefined) return known.point;
     const { theveninVolts, theveninOhms } = this.gridSourceA(injectedAmps);
     const highest = this.highestPlateAmpsA();
+    this.latestTrialA = undefined;
+    this.previousTrialA = undefined;
     // q(i) = i − Ip_A(nodes for i) rises with slope ≥ 1 (Ip_A only falls as i rises), so the
     // root lies between any trial point i0 and i0 − q(i0): one evaluation brackets it.
-    const start = Math.min(highest, Math.max(0, this.plateCurrentGuessA ?? 0));
-    const atStart = start - this.plateAmpsAOf(this.networkAt(injectedAmps, start, theveninVolts, theveninOhms));
+    const start = Math.min(highest, Math.max(0, this.startingPlateCurrentA(injectedAmps)));
+    const atStart = this.excessA(injectedAmps, start, theveninVolts, theveninOhms);
     const tolerance = CURRENT_TOLERANCE_FRACTION * highest;
     let plateAmpsA = start;
     if (Math.abs(atStart) > tolerance) {
       let low = Math.min(highest, Math.max(0, start - atStart));
       let high = start;
-      let atLow = low - this.plateAmpsAOf(this.networkAt(injectedAmps, low, theveninVolts, theveninOhms));
+      let atLow = this.excessA(injectedAmps, low, theveninVolts, theveninOhms);
       let atHigh = atStart;
       if (low > high) {
         [low, high, atLow, atHigh] = [high, low, atHigh, atLow];
@@ -715,11 +1091,11 @@ export class CircuitModel {
         // range; the equilibria found are verified afterwards.
         low = 0;
         high = highest;
-        atLow = -this.plateAmpsAOf(this.networkAt(injectedAmps, 0, theveninVolts, theveninOhms));
-        atHigh = highest - this.plateAmpsAOf(this.networkAt(injectedAmps, highest, theveninVolts, theveninOhms));
+        atLow = this.excessA(injectedAmps, 0, theveninVolts, theveninOhms);
+        atHigh = this.excessA(injectedAmps, highest, theveninVolts, theveninOhms);
       }
       plateAmpsA = brentRoot(
-        (current) => current - this.plateAmpsAOf(this.networkAt(injectedAmps, current, theveninVolts, theveninOhms)),
+        (current) => this.excessA(injectedAmps, current, theveninVolts, theveninOhms),
         low,
         high,
         atLow,
@@ -727,10 +1103,14 @@ export class CircuitModel {
         tolerance,
         INNER_ITERATION_CAP,
         "side A plate current",
+        // q rises with slope ≥ 1: a residual within the tolerance is a current within it.
+        tolerance,
       );
     }
-    this.plateCurrentGuessA = plateAmpsA;
-    return this.pointAt(injectedAmps, plateAmpsA);
+    const point = this.pointAt(injectedAmps, plateAmpsA, this.keptTrialA(plateAmpsA));
+    this.chained.set(injectedAmps, { point, plateAmpsA });
+    this.chainedCurrents.splice(this.chainedIndex(injectedAmps), 0, injectedAmps);
+    return point;
   }
 
   // ── equilibria ───────────────────────────────────────────────────────────
@@ -750,19 +1130,18 @@ export class CircuitModel {
   findEquilibria(sweepPoints: number): { roots: number[]; range: number } {
     const range = this.sweptRange();
     const tolerance = CURRENT_ROOT_TOLERANCE_FRACTION * range;
-    const residual = (t: number) => this.chain(t).residualAmps;
     let cells = sweepPoints;
     for (;;) {
-      this.plateCurrentGuessA = undefined;
-      this.cathodeExtraGuessVolts = undefined;
+      this.settledForcedVolts = undefined;
+      this.settleSlope = 1;
       const currents: number[] = [];
       const residuals: number[] = [];
       for (let index = 0; index <= cells; index++) {
         const t = (range * index) / cells;
         currents.push(t);
-        residuals.push(residual(t));
+        residuals.push(this.chain(t).residualAmps);
       }
-      const roots = this.rootsFromSamples(residual, currents, residuals, tolerance);
+      const roots = this.rootsFromSamples((t) => this.chain(t).residualAmps, currents, residuals, tolerance);
       if (roots.length >= 3 || cells >= REFINED_SWEEP_POINTS) return { roots, range };
       cells = Math.min(cells * 4, REFINED_SWEEP_POINTS);
     }
@@ -776,8 +1155,6 @@ export class CircuitModel {
   ): number[] {
     const roots: number[] = [];
     const last = currents.length - 1;
-    const refine = (lo: number, hi: number, atLo: number, atHi: number) =>
-      roots.push(brentRoot(residual, lo, hi, atLo, atHi, tolerance, CURRENT_ROOT_ITERATION_CAP, "equilibrium"));
     for (let index = 0; index <= last; index++) {
       const here = residuals[index];
       if (here === 0) {
@@ -786,7 +1163,11 @@ export class CircuitModel {
       }
       if (index < last) {
         const next = residuals[index + 1];
-        if (next !== 0 && here > 0 !== next > 0) refine(currents[index], currents[index + 1], here, next);
+        if (next !== 0 && here > 0 !== next > 0) {
+          roots.push(
+            brentRoot(residual, currents[index], currents[index + 1], here, next, tolerance, CURRENT_ROOT_ITERATION_CAP, "equilibrium"),
+          );
+        }
       }
     }
     // A pair of roots inside two cells shows up as a sampled extremum on the wrong side of zero.
@@ -805,8 +1186,8 @@ export class CircuitModel {
       const extremum = goldenSectionMaximum((t) => sign * residual(t), lo, hi, tolerance, EXTREMUM_ITERATION_CAP);
       if (extremum.value > 0) {
         const atExtremum = sign * extremum.value;
-        refine(lo, extremum.x, before, atExtremum);
-        refine(extremum.x, hi, atExtremum, after);
+        roots.push(brentRoot(residual, lo, extremum.x, before, atExtremum, tolerance, CURRENT_ROOT_ITERATION_CAP, "equilibrium"));
+        roots.push(brentRoot(residual, extremum.x, hi, atExtremum, after, tolerance, CURRENT_ROOT_ITERATION_CAP, "equilibrium"));
       }
     }
     roots.sort((first, second) => first - second);
@@ -991,7 +1372,6 @@ export class CircuitModel {
   private refineInPlane(seed: { t: number; i: number }, rangeB: number, rangeA: number): { t: number; i: number } | null {
     const toleranceB = ROOT_CHECK_AMPS * 1e-3 + CURRENT_ROOT_TOLERANCE_FRACTION * rangeB;
     const toleranceA = ROOT_CHECK_AMPS * 1e-3 + CURRENT_ROOT_TOLERANCE_FRACTION * rangeA;
-    const size = (residualB: number, residualA: number) => Math.hypot(residualB / rangeB, residualA / rangeA);
     let { t, i } = seed;
     let here = this.pointAt(t, i);
     for (let iteration = 0; iteration < PLANE_NEWTON_CAP; iteration++) {
@@ -1008,13 +1388,13 @@ export class CircuitModel {
       if (!(Math.abs(determinant) > 0) || !Number.isFinite(determinant)) return null;
       const deltaB = (-here.residualAmps * j22 + here.residualAmpsA * j12) / determinant;
       const deltaA = (-here.residualAmpsA * j11 + here.residualAmps * j21) / determinant;
-      const current = size(here.residualAmps, here.residualAmpsA);
+      const current = Math.hypot(here.residualAmps / rangeB, here.residualAmpsA / rangeA);
       let accepted = false;
       for (let damping = 1; damping >= 1 / 1024; damping /= 2) {
         const nextB = Math.min(rangeB, Math.max(0, t + damping * deltaB));
         const nextA = Math.min(rangeA, Math.max(0, i + damping * deltaA));
         const candidate = this.pointAt(nextB, nextA);
-        if (size(candidate.residualAmps, candidate.residualAmpsA) < current) {
+        if (Math.hypot(candidate.residualAmps / rangeB, candidate.residualAmpsA / rangeA) < current) {
           t = nextB;
           i = nextA;
           here = candidate;
@@ -1045,32 +1425,62 @@ export class CircuitModel {
     const cathode = this.cathode;
     const ownCathodeOhms =
       cathode.kind === "separate" ? (from === "A" ? cathode.sideAOhms : cathode.sideBOhms) : 0;
-    const drivenGrid: DrivenGridSolver = (volts, ohms) => this.drivenGridFixed(driven, volts, ohms, drivenNodes.cathode);
-    const outputFor = (gridVolts: number): number => {
-      const stageAt = (cathodeVolts: number) => {
-        const u = gridVolts - cathodeVolts;
-        const x = this.screenOffsetFixedCathode(driving, u, cathodeVolts);
-        const solved = this.solvePlate(driving, cathodeVolts, u, x, drivenGrid, drivingNodes.plate);
-        const cathodeAmps =
-          this.plateAmps(driving, solved.plate - cathodeVolts, u, x) + this.gridAmps(driving, u) + this.screenAmps(driving, u, x);
-        return { solved, cathodeAmps };
-      };
-      if (ownCathodeOhms === 0) return stageAt(drivingNodes.cathode).solved.driven.grid;
-      const cathodeVolts = monotoneRoot(
-        (volts) => volts - ownCathodeOhms * stageAt(volts).cathodeAmps,
-        0,
-        this.highestSupplyVolts + 1,
-        true,
-        drivingNodes.cathode,
-        CATHODE_GUESS_STEP_VOLTS,
-        VOLTS_TOLERANCE,
-        INNER_ITERATION_CAP,
-        "stage cathode",
-      );
-      return stageAt(cathodeVolts).solved.driven.grid;
-    };
     const step = STAGE_GAIN_STEP_VOLTS;
-    return (outputFor(drivingNodes.grid + step) - outputFor(drivingNodes.grid - step)) / (2 * step);
+    const up = this.stageOutput(driving, driven, drivingNodes, drivenNodes.cathode, ownCathodeOhms, drivingNodes.grid + step);
+    const down = this.stageOutput(driving, driven, drivingNodes, drivenNodes.cathode, ownCathodeOhms, drivingNodes.grid - step);
+    return (up - down) / (2 * step);
+  }
+
+  /** The driven grid for one driving grid voltage, the driving side's own cathode resistor settled. */
+  private stageOutput(
+    driving: SideModel,
+    driven: SideModel,
+    drivingNodes: SideNodes,
+    drivenCathodeVolts: number,
+    ownCathodeOhms: number,
+    gridVolts: number,
+  ): number {
+    const plateGuess = drivingNodes.plate;
+    if (ownCathodeOhms === 0) {
+      return this.stageAt(driving, driven, plateGuess, drivenCathodeVolts, gridVolts, drivingNodes.cathode).solved.driven.grid;
+    }
+    const cathodeVolts = monotoneRoot(
+      (volts) =>
+        volts - ownCathodeOhms * this.stageAt(driving, driven, plateGuess, drivenCathodeVolts, gridVolts, volts).cathodeAmps,
+      0,
+      this.highestSupplyVolts + 1,
+      true,
+      drivingNodes.cathode,
+      CATHODE_GUESS_STEP_VOLTS,
+      VOLTS_TOLERANCE,
+      INNER_ITERATION_CAP,
+      "stage cathode",
+    );
+    return this.stageAt(driving, driven, plateGuess, drivenCathodeVolts, gridVolts, cathodeVolts).solved.driven.grid;
+  }
+
+  /** The driving stage with its grid and cathode given: plate node, driven grid, and its cathode current. */
+  private stageAt(
+    driving: SideModel,
+    driven: SideModel,
+    plateGuess: number,
+    drivenCathodeVolts: number,
+    gridVolts: number,
+    cathodeVolts: number,
+  ): { solved: { plate: number; driven: DrivenGrid }; cathodeAmps: number } {
+    const u = gridVolts - cathodeVolts;
+    const x = this.screenOffsetFixedCathode(driving, u, cathodeVolts);
+    const solved = this.solvePlate(
+      driving,
+      cathodeVolts,
+      u,
+      x,
+      (volts, ohms) => this.drivenGridFixed(driven, volts, ohms, drivenCathodeVolts),
+      plateGuess,
+    );
+    const cathodeAmps =
+      this.plateAmps(driving, solved.plate - cathodeVolts, u, x) + this.gridAmps(driving, u) + this.screenAmps(driving, u, x);
+    return { solved, cathodeAmps };
   }
 
   /**
@@ -1082,8 +1492,7 @@ export class CircuitModel {
     const plateVolts = nodes.plate - nodes.cathode;
     const screenVolts = side.screen === null ? 0 : nodes.screen - nodes.cathode;
     const actual = nodes.grid - nodes.cathode;
-    const residual = (gridVolts: number) => this.plateAmps(side, plateVolts, gridVolts, screenVolts) - threshold;
-    const atActual = residual(actual);
+    const atActual = this.plateAmps(side, plateVolts, actual, screenVolts) - threshold;
     if (atActual === 0) return actual;
     const direction = atActual < 0 ? 1 : -1;
     let stride = 1;
@@ -1091,12 +1500,20 @@ export class CircuitModel {
     let atNear = atActual;
     for (let expansion = 0; expansion < MAX_BRACKET_EXPANSIONS; expansion++) {
       const far = near + direction * stride;
-      const atFar = residual(far);
+      const atFar = this.plateAmps(side, plateVolts, far, screenVolts) - threshold;
       if (atFar === 0) return far;
       if (atFar > 0 !== atNear > 0) {
-        return direction > 0
-          ? brentRoot(residual, near, far, atNear, atFar, VOLTS_TOLERANCE, INNER_ITERATION_CAP, "cut-off grid")
-          : brentRoot(residual, far, near, atFar, atNear, VOLTS_TOLERANCE, INNER_ITERATION_CAP, "cut-off grid");
+        const [low, high, atLow, atHigh] = direction > 0 ? [near, far, atNear, atFar] : [far, near, atFar, atNear];
+        return brentRoot(
+          (gridVolts) => this.plateAmps(side, plateVolts, gridVolts, screenVolts) - threshold,
+          low,
+          high,
+          atLow,
+          atHigh,
+          VOLTS_TOLERANCE,
+          INNER_ITERATION_CAP,
+          "cut-off grid",
+        );
       }
       near = far;
       atNear = atFar;

@@ -12,7 +12,10 @@ const MAX_BRACKET_EXPANSIONS = 80;
 
 /**
  * Brent's method on a bracket [a, b] whose ends have opposite signs (fa, fb given).
- * Stops when the bracket is narrower than `tolerance` (absolute, in x).
+ * Stops when the bracket is narrower than `tolerance` (absolute, in x), or at a point where
+ * |f| ≤ `residualTolerance` (default 0: only an exact zero). When |f'| ≥ s everywhere, a
+ * residualTolerance of at most s·tolerance puts that point within `tolerance` of the root as
+ * well, and it often comes one or two evaluations before the bracket closes.
  * Throws SolverError when the bracket is invalid or the iteration cap is hit.
  */
 export function brentRoot(
@@ -24,6 +27,7 @@ export function brentRoot(
   tolerance: number,
   maxIterations: number,
   label: string,
+  residualTolerance = 0,
 ): number {
   if (fa === 0) return a;
   if (fb === 0) return b;
@@ -50,7 +54,7 @@ export function brentRoot(
     }
     const halfTolerance = 2 * MACHINE_EPSILON * Math.abs(b) + 0.5 * tolerance;
     const midpointOffset = 0.5 * (c - b);
-    if (Math.abs(midpointOffset) <= halfTolerance || fb === 0) return b;
+    if (Math.abs(midpointOffset) <= halfTolerance || Math.abs(fb) <= residualTolerance) return b;
     if (Math.abs(previousStep) >= halfTolerance && Math.abs(fa) > Math.abs(fb)) {
       // Inverse quadratic interpolation, or secant when only two distinct points exist.
       const s = fb / fa;
