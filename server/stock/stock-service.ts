@@ -20,6 +20,8 @@ export interface TubeRow {
   state: string;
   notes: string;
   verdict: string;
+  /** The verdict as words ("not comparable"), so the list's rows need no partial each. */
+  verdictText: string;
   percentOfReference: number | null;
   percentText: string;
 }
@@ -32,12 +34,25 @@ type TubeWithType = {
 export function toTubeRow(tube: TubeWithType): TubeRow {
   return {
     id: tube.id, label: tube.label, type: tube.type.designation, maker: tube.maker, dateCode: tube.dateCode,
-    location: tube.location, state: tube.state, notes: tube.notes, verdict: tube.verdict, percentOfReference: tube.percent,
+    location: tube.location, state: tube.state, notes: tube.notes, verdict: tube.verdict, verdictText: VERDICT_TEXT[tube.verdict] ?? tube.verdict, percentOfReference: tube.percent,
     percentText: tube.percent === null ? "" : `${Math.round(tube.percent)} %`,
   };
 }
 
+const VERDICT_TEXT: Readonly<Record<string, string>> = { "not-comparable": "not comparable" };
+
+/** One list row straight from the SQL row: the hottest loop of the busiest page, so no spread or regex. */
+function listRow(row: Omit<TubeWithType, "type"> & { designation: string }): TubeRow {
+  return {
+    id: row.id, label: row.label, type: row.designation, maker: row.maker, dateCode: row.dateCode, location: row.location, state: row.state,
+    notes: row.notes, verdict: row.verdict, verdictText: VERDICT_TEXT[row.verdict] ?? row.verdict, percentOfReference: row.percent,
+    percentText: row.percent === null ? "" : `${Math.round(row.percent)} %`,
+  };
+}
+
 export class StockService {
+  private locationsCache: { key: string; locations: string[] } | undefined;
+
   /** Prepared statements by SQL text: the list builds a handful of filter shapes, each prepared once. */
   private readonly statements = new Map<string, Database.Statement>();
 
@@ -106,11 +121,19 @@ export class StockService {
       )
       .all(...values, query.pageSize, (query.page - 1) * query.pageSize) as Array<Omit<TubeWithType, "type"> & { designation: string }>;
     const pages = Math.max(1, Math.ceil(total / query.pageSize));
-    return { total, page: query.page, pages, pageSize: query.pageSize, tubes: rows.map((row) => toTubeRow({ ...row, type: { designation: row.designation } })) };
+    return { total, page: query.page, pages, pageSize: query.pageSize, tubes: rows.map(listRow) };
   }
 
 
+  /**
+   * Every distinct location, for the list's filter. Kept until the database changes: SQLite's
+   * data_version moves when another connection (Prisma) commits, total_changes() when this raw
+   * connection writes, so the key is exact and costs two tiny reads.
+   */
   async locations(): Promise<string[]> {
+    const version = this.statement("SELECT (SELECT data_version FROM pragma_data_version()) AS data, total_changes() AS changes").get() as { data: number; changes: number };
+    const key = `${version.data}:${version.changes}`;
+    if (this.locationsCache?.key === key) return this.locationsCache.locations;
     // Hop from one distinct location to the next through the index instead of reading every tube.
     const rows = this
       .statement(
@@ -120,7 +143,9 @@ export class StockService {
          SELECT location FROM next WHERE location IS NOT NULL`,
       )
       .all() as Array<{ location: string }>;
-    return rows.map((r) => r.location);
+    const locations = rows.map((r) => r.location);
+    this.locationsCache = { key, locations };
+    return locations;
   }
 
   /** Per type: how many tubes are good, worn, failed, untested or not comparable (retired excluded). */

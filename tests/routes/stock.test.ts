@@ -96,6 +96,16 @@ describe("stock pages", () => {
     const active = (await t.app.inject({ url: "/api/tubes?q=F-&state=active&pageSize=100" })).json();
     expect([active.total, active.tubes.length]).toEqual([59, 59]);
     await t.app.db.tube.update({ where: { id: renamed.id }, data: { state: "stock" } });
+    // The location filter's list follows writes through Prisma and through the raw connection.
+    expect(await t.app.stock.locations()).toEqual(expect.arrayContaining(["Box 1", "Box 2"]));
+    await t.app.stock.create({ label: "F-LOC-1", type: "12AU7", state: "stock", location: "Attic crate" });
+    expect(await t.app.stock.locations()).toContain("Attic crate");
+    t.app.sqlite.prepare("UPDATE Tube SET location = 'Cellar rack' WHERE label = 'F-LOC-1'").run();
+    const afterRaw = await t.app.stock.locations();
+    expect(afterRaw).toContain("Cellar rack");
+    expect(afterRaw).not.toContain("Attic crate");
+    await t.app.db.tube.delete({ where: { label: "F-LOC-1" } });
+    expect(await t.app.stock.locations()).not.toContain("Cellar rack");
     const badQuery = await t.app.inject({ url: "/api/tubes?verdict=shiny" });
     expect(badQuery.statusCode).toBe(400);
     expect(badQuery.json().fields.verdict).toBeDefined();
