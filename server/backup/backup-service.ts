@@ -5,6 +5,7 @@
 import { Readable } from "node:stream";
 import type Database from "better-sqlite3";
 import type { TypeCatalog } from "../types/type-catalog.ts";
+import { withLabelSearchDeferred } from "../db/label-search.ts";
 import type { VerdictService } from "../verdicts/verdict-service.ts";
 import type { SettingsService } from "../settings/settings-service.ts";
 import type { TubeTypeSpec } from "../engine/tube-types/index.ts";
@@ -78,6 +79,23 @@ export class BackupService {
     );
   }
 
+  /** Empties every backed-up table and inserts the document's rows (inside the caller's transaction). */
+  private replaceRows(document: BackupDocument): void {
+    const sqlite = this.sqlite;
+    for (const layout of [...BACKUP_TABLES].reverse()) sqlite.prepare(`DELETE FROM ${quoted(layout.name)}`).run();
+    // Restart the id counters so new rows continue from the restored ids, as they did before.
+    sqlite.prepare(`DELETE FROM sqlite_sequence WHERE name IN (${BACKUP_TABLES.map(() => "?").join(", ")})`).run(...BACKUP_TABLES.map((layout) => layout.name));
+    for (const layout of BACKUP_TABLES) {
+      const names = columnNames(layout);
+      const booleans = booleanColumns(layout);
+      const insert = sqlite.prepare(`INSERT INTO ${quoted(layout.name)} (${names.map(quoted).join(", ")}) VALUES (${names.map(() => "?").join(", ")})`);
+      for (const row of document.tables[layout.name].rows) {
+        const values = booleans.length ? row.map((value, index) => (booleans.includes(index) ? (value ? 1 : 0) : value)) : row;
+        insert.run(...values);
+      }
+    }
+  }
+
   /**
    * Replaces every table with the rows of a validated backup, all or nothing. Foreign keys are
    * switched off for the swap (a PRAGMA that is ignored inside a transaction, hence before
@@ -95,18 +113,8 @@ export class BackupService {
     try {
       sqlite.exec("BEGIN IMMEDIATE");
       try {
-        for (const layout of [...BACKUP_TABLES].reverse()) sqlite.prepare(`DELETE FROM ${quoted(layout.name)}`).run();
-        // Restart the id counters so new rows continue from the restored ids, as they did before.
-        sqlite.prepare(`DELETE FROM sqlite_sequence WHERE name IN (${BACKUP_TABLES.map(() => "?").join(", ")})`).run(...BACKUP_TABLES.map((layout) => layout.name));
-        for (const layout of BACKUP_TABLES) {
-          const names = columnNames(layout);
-          const booleans = booleanColumns(layout);
-          const insert = sqlite.prepare(`INSERT INTO ${quoted(layout.name)} (${names.map(quoted).join(", ")}) VALUES (${names.map(() => "?").join(", ")})`);
-          for (const row of document.tables[layout.name].rows) {
-            const values = booleans.length ? row.map((value, index) => (booleans.includes(index) ? (value ? 1 : 0) : value)) : row;
-            insert.run(...values);
-          }
-        }
+        // Every tube goes and comes back: the label search is rebuilt once, not fed per row.
+        await withLabelSearchDeferred(sqlite, () => this.replaceRows(document));
         const dangling = sqlite.pragma("foreign_key_check") as Array<{ table: string; rowid: number; parent: string }>;
         if (dangling.length) {
           const first = dangling[0];
