@@ -77,6 +77,9 @@ export const SECTION_KINDS = [
   "indicator",
 ] as const satisfies readonly SectionKind[];
 
+/** How a pentode's plate current falls with grid bias: at a knee, or gradually for gain control. */
+export const SECTION_CUTOFFS = ["sharp", "remote"] as const satisfies ReadonlyArray<NonNullable<SectionSpec["cutoff"]>>;
+
 /** Elements that belong to one section; the others (heater, filament, shield, IC, NC) belong to the envelope. */
 export const SECTION_ELEMENTS: readonly PinElement[] = ["a", "g1", "g2", "g3", "g4", "g5", "k", "bp", "ts"];
 
@@ -198,7 +201,7 @@ export const sectionSpecSchema = z
     kind: z.enum(SECTION_KINDS, { error: `section kind must be one of ${SECTION_KINDS.join(", ")}` }),
     label: z.string({ error: "section label must be text" }).regex(SECTION_LABEL_PATTERN, "section label must be lower-case letters, digits, spaces, dots or dashes, at most 24 characters (e.g. segment a)").optional(),
     typical: z.array(operatingPointSchema, { error: "section typical must be a list of operating points" }),
-    cutoff: z.enum(["sharp", "remote"], { error: 'section cutoff must be "sharp" or "remote"' }).optional(),
+    cutoff: z.enum(SECTION_CUTOFFS, { error: 'section cutoff must be "sharp" or "remote"' }).optional(),
     maxRatings: maxRatingsSchema.optional(),
     glow: glowDischargeSchema.optional(),
   })

@@ -7,7 +7,7 @@ import { z } from "zod";
 import { parseTransconductance } from "../engine/units/index.ts";
 import { requiredText } from "./form-parsing.ts";
 import { checkboxField, numberField, quantityField } from "./substitute-schemas.ts";
-import { BASE_FAMILIES, SECTION_KINDS, TUBE_CLASSES, tubeTypeSpecSchema } from "./tube-type-schema.ts";
+import { BASE_FAMILIES, SECTION_CUTOFFS, SECTION_KINDS, TUBE_CLASSES, tubeTypeSpecSchema } from "./tube-type-schema.ts";
 
 /** An optional trimmed text field; "" is absent; the message names the field. */
 const optionalField = (label: string, max: number) =>
@@ -47,7 +47,7 @@ export const MAX_RATING_FIELDS = [
 /** One section row's fields: s1Kind, s1PlateVolts, … */
 export const TYPICAL_FIELDS = ["PlateVolts", "GridVolts", "ScreenVolts", "PlateMilliamps", "ScreenMilliamps", "Gm", "Mu", "Rp"] as const;
 export type TypicalField = (typeof TYPICAL_FIELDS)[number];
-export const typicalFieldName = (section: number, field: TypicalField | "Kind" | "Label") => `s${section}${field}`;
+export const typicalFieldName = (section: number, field: TypicalField | "Kind" | "Label" | "Cutoff") => `s${section}${field}`;
 
 /** The glow discharge of the type's regulator section (regulators have one section). */
 export const GLOW_FIELDS = [
@@ -85,6 +85,7 @@ function sectionShape() {
     const name = (field: TypicalField | "Kind") => typicalFieldName(section, field);
     shape[name("Kind")] = z.preprocess(blankAsAbsent, z.enum(SECTION_KINDS, { error: `Section ${section} kind must be one of ${SECTION_KINDS.join(", ")}` }).optional());
     shape[typicalFieldName(section, "Label")] = optionalField(`Section ${section} label`, 24).transform((value) => value?.toLowerCase());
+    shape[typicalFieldName(section, "Cutoff")] = z.preprocess(blankAsAbsent, z.enum(SECTION_CUTOFFS, { error: `Section ${section} cutoff must be sharp or remote` }).optional());
     shape[name("PlateVolts")] = quantityField(`Section ${section} plate volts`, "volts", { max: 5000 });
     shape[name("GridVolts")] = quantityField(`Section ${section} grid volts`, "volts", { allowNegative: true, min: -1000, max: 1000 });
     shape[name("ScreenVolts")] = quantityField(`Section ${section} screen volts`, "volts", { max: 5000 });

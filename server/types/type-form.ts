@@ -138,7 +138,8 @@ export function typeFormToSpec(form: Partial<TypeForm>, fieldErrors: FieldErrors
       if (complete && !TYPICAL_FIELDS.some((field) => errors[typicalFieldName(section, field)] !== undefined)) typical.push(point as unknown as OperatingPoint);
     }
     const label = record[typicalFieldName(section, "Label")] as string | undefined;
-    sections.push({ index: section, kind, ...(label !== undefined ? { label } : {}), typical });
+    const cutoff = record[typicalFieldName(section, "Cutoff")] as SectionSpec["cutoff"];
+    sections.push({ index: section, kind, ...(label !== undefined ? { label } : {}), ...(cutoff !== undefined ? { cutoff } : {}), typical });
   }
   const glowValues = GLOW_FIELDS.map((glow) => record[glow.field] as number | undefined);
   if (glowValues.every((value) => value !== undefined)) {
@@ -173,7 +174,7 @@ export function typeFormToSpec(form: Partial<TypeForm>, fieldErrors: FieldErrors
   const aliases = (form.aliases ?? "").split(/[\s,;]+/).filter((alias) => alias !== "");
   const sources: Record<string, string> = { pins: source, heater: source };
   if (Object.keys(maxRatings).length > 0) sources.maxRatings = source;
-  if (sections.some((section) => section.typical.length > 0 || section.glow !== undefined)) sources.sections = source;
+  if (sections.some((section) => section.typical.length > 0 || section.glow !== undefined || section.cutoff !== undefined)) sources.sections = source;
   if (aliases.length > 0) sources.aliases = source;
 
   const spec: TubeTypeSpec = {
@@ -245,6 +246,7 @@ function fieldForSpecPath(path: string, pinLineNumbers: readonly number[]): { fi
       const section = parts[1] !== undefined ? Number(parts[1]) + 1 : 1;
       if (parts[2] === "kind" || parts[2] === "index" || parts[2] === undefined) return { field: typicalFieldName(section, "Kind"), prefix: `Section ${section}: ` };
       if (parts[2] === "label") return { field: typicalFieldName(section, "Label"), prefix: `Section ${section}: ` };
+      if (parts[2] === "cutoff") return { field: typicalFieldName(section, "Cutoff"), prefix: `Section ${section}: ` };
       if (parts[2] === "glow") return { field: GLOW_FIELDS.find((entry) => entry.key === parts[3])?.field ?? "glowOperatingVolts", prefix: "Glow discharge: " };
       const field = TYPICAL_FIELD_OF_KEY[parts[4] ?? ""] ?? "PlateVolts";
       return { field: typicalFieldName(section, field), prefix: `Section ${section}: ` };

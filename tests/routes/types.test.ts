@@ -265,6 +265,29 @@ describe("user-added types through the form", () => {
     expect(page).toContain("holds 120 V over 5–40 mA; strikes at 150 V");
   });
 
+  it("takes a pentode's cutoff and refuses it on a triode, beside the field", async () => {
+    // Invented pentode "9QP1" on the 7BK pin-out; its figures only have to satisfy the library rules.
+    const pentode: Record<string, string> = {
+      designation: "9QP1",
+      class: "pentode",
+      base: "B7G",
+      pins: "1=g1:1\n2=g3:1\n3=h\n4=h\n5=a:1\n6=g2:1\n7=k:1",
+      heaterVolts: "6.3",
+      heaterAmps: "0.3",
+      s1Kind: "pentode",
+      s1Cutoff: "remote",
+      source: "entered by owner for a test",
+    };
+    const wrong = await postForm(t.app, "/types/new", { ...newTypeForm, designation: "9QX6", aliases: "", s1Cutoff: "sharp" }, { from: "/types/new", htmx: true });
+    expect(wrong.statusCode).toBe(422);
+    expect(new RegExp('id="s1Cutoff-error" role="alert">([^<]*)<').exec(decoded(wrong.body))?.[1]).toContain("cutoff describes pentode and heptode sections, not a triode");
+    const bad = await postForm(t.app, "/types/new", { ...pentode, s1Cutoff: "soft" }, { from: "/types/new", htmx: true });
+    expect(new RegExp('id="s1Cutoff-error" role="alert">([^<]*)<').exec(decoded(bad.body))?.[1]).toContain("Section 1 cutoff must be sharp or remote");
+    const saved = await postForm(t.app, "/types/new", pentode, { from: "/types/new" });
+    expect(saved.statusCode, saved.body.slice(0, 300)).toBe(303);
+    expect((await t.app.inject({ url: "/api/types/9QP1" })).json().sections[0].cutoff).toBe("remote");
+  });
+
   it("shows the empty form with the pin-line hint", async () => {
     const response = await t.app.inject({ url: "/types/new" });
     expect(response.statusCode).toBe(200);

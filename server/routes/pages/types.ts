@@ -5,7 +5,7 @@
  */
 import type { FastifyInstance } from "fastify";
 import { parseWith, type FieldErrors } from "../../schemas/form-parsing.ts";
-import { BASE_FAMILIES, PIN_ELEMENTS, SECTION_KINDS, TUBE_CLASSES } from "../../schemas/tube-type-schema.ts";
+import { BASE_FAMILIES, PIN_ELEMENTS, SECTION_CUTOFFS, SECTION_KINDS, TUBE_CLASSES } from "../../schemas/tube-type-schema.ts";
 import { GLOW_FIELDS, MAX_RATING_FIELDS, TYPE_FORM_SECTIONS, parseTypeFormFields, typeListQuerySchema } from "../../schemas/type-form-schemas.ts";
 import { formErrorsFromSpecErrors, typeFormToSpec } from "../../types/type-form.ts";
 import { checkNewType, designationClash } from "../../types/type-validation.ts";
@@ -23,6 +23,7 @@ export default async function typePages(app: FastifyInstance) {
     classes: TUBE_CLASSES,
     bases: BASE_FAMILIES,
     sectionKinds: SECTION_KINDS,
+    cutoffs: SECTION_CUTOFFS,
     pinElements: PIN_ELEMENTS,
     ratingFields: MAX_RATING_FIELDS,
     glowFields: GLOW_FIELDS,
