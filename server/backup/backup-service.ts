@@ -6,6 +6,7 @@ import { Readable } from "node:stream";
 import type Database from "better-sqlite3";
 import type { TypeCatalog } from "../types/type-catalog.ts";
 import { withLabelSearchDeferred } from "../db/label-search.ts";
+import { bulkWriteGate } from "../db/write-gate.ts";
 import type { VerdictService } from "../verdicts/verdict-service.ts";
 import type { SettingsService } from "../settings/settings-service.ts";
 import type { TubeTypeSpec } from "../engine/tube-types/index.ts";
@@ -79,6 +80,36 @@ export class BackupService {
     );
   }
 
+  /** Every table replaced in one transaction; null when done, the refusal otherwise (nothing changed). */
+  private async replaceAll(document: BackupDocument): Promise<Extract<RestoreResult, { ok: false }> | null> {
+    const sqlite = this.sqlite;
+    if (sqlite.inTransaction) return { ok: false, message: "another change is in progress; try again" };
+
+    sqlite.pragma("foreign_keys = OFF");
+    try {
+      sqlite.exec("BEGIN IMMEDIATE");
+      try {
+        // Every tube goes and comes back: the label search is rebuilt once, not fed per row.
+        await withLabelSearchDeferred(sqlite, () => this.replaceRows(document));
+        const dangling = sqlite.pragma("foreign_key_check") as Array<{ table: string; rowid: number; parent: string }>;
+        if (dangling.length) {
+          const first = dangling[0];
+          throw new RestoreRefused(`${dangling.length} row${dangling.length === 1 ? "" : "s"} point at missing rows (first: ${first.table} row ${first.rowid} → ${first.parent})`);
+        }
+        sqlite.exec("COMMIT");
+      } catch (error) {
+        if (sqlite.inTransaction) sqlite.exec("ROLLBACK");
+        if (error instanceof RestoreRefused) return { ok: false, message: error.message };
+        const code = (error as { code?: string }).code ?? "";
+        if (code.startsWith("SQLITE_CONSTRAINT")) return { ok: false, message: `the database refused the backup's rows (${(error as Error).message}); nothing was changed` };
+        throw error;
+      }
+    } finally {
+      sqlite.pragma("foreign_keys = ON");
+    }
+    return null;
+  }
+
   /** Empties every backed-up table and inserts the document's rows (inside the caller's transaction). */
   private replaceRows(document: BackupDocument): void {
     const sqlite = this.sqlite;
@@ -106,31 +137,9 @@ export class BackupService {
   async restore(document: BackupDocument): Promise<RestoreResult> {
     // Loaded before anything is touched: a broken library must not leave a half-done restore.
     const library = this.referenceTypes();
-    const sqlite = this.sqlite;
-    if (sqlite.inTransaction) return { ok: false, message: "another change is in progress; try again" };
-
-    sqlite.pragma("foreign_keys = OFF");
-    try {
-      sqlite.exec("BEGIN IMMEDIATE");
-      try {
-        // Every tube goes and comes back: the label search is rebuilt once, not fed per row.
-        await withLabelSearchDeferred(sqlite, () => this.replaceRows(document));
-        const dangling = sqlite.pragma("foreign_key_check") as Array<{ table: string; rowid: number; parent: string }>;
-        if (dangling.length) {
-          const first = dangling[0];
-          throw new RestoreRefused(`${dangling.length} row${dangling.length === 1 ? "" : "s"} point at missing rows (first: ${first.table} row ${first.rowid} → ${first.parent})`);
-        }
-        sqlite.exec("COMMIT");
-      } catch (error) {
-        if (sqlite.inTransaction) sqlite.exec("ROLLBACK");
-        if (error instanceof RestoreRefused) return { ok: false, message: error.message };
-        const code = (error as { code?: string }).code ?? "";
-        if (code.startsWith("SQLITE_CONSTRAINT")) return { ok: false, message: `the database refused the backup's rows (${(error as Error).message}); nothing was changed` };
-        throw error;
-      }
-    } finally {
-      sqlite.pragma("foreign_keys = ON");
-    }
+    // Other writes wait for the gate while every table is replaced.
+    const refused = await bulkWriteGate(this.sqlite).hold(() => this.replaceAll(document));
+    if (refused !== null) return refused;
 
     const referenceTypesRefreshed = this.refreshReferenceTypes(library);
     forgetCachedThresholds(this.settings);

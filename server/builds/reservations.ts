@@ -44,6 +44,11 @@ export class Reservations {
   ) {}
 
   private run<T>(work: () => T): BuildResult<T> {
+    // An import or restore holds the raw connection's transaction: joining it would tie this
+    // change to that one's fate, so refuse and let the owner try again.
+    if (this.sqlite.inTransaction) {
+      return { ok: false, errors: { _form: "An import or restore is being saved right now; nothing was changed — try again in a moment" }, status: 409 };
+    }
     try {
       return { ok: true, value: this.sqlite.transaction(work).immediate() };
     } catch (error) {

@@ -5,6 +5,7 @@
  */
 import { createHash } from "node:crypto";
 import { withLabelSearchDeferred } from "../db/label-search.ts";
+import { bulkWriteGate } from "../db/write-gate.ts";
 import type Database from "better-sqlite3";
 import type { TypeCatalog } from "../types/type-catalog.ts";
 import type { VerdictService } from "../verdicts/verdict-service.ts";
@@ -374,7 +375,8 @@ export class ImportService {
    * cached verdicts are written under one BEGIN IMMEDIATE … COMMIT, and any error rolls it all back.
    */
   commit(input: CommitInput, progress: Progress = () => {}): Promise<CommitOutcome> {
-    const run = this.commitQueue.then(() => this.commitNow(input, progress));
+    // Other writes wait for the gate rather than inside SQLite's busy handler.
+    const run = this.commitQueue.then(() => bulkWriteGate(this.sqlite).hold(() => this.commitNow(input, progress)));
     this.commitQueue = run.catch(() => undefined);
     return run;
   }

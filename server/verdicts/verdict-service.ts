@@ -8,6 +8,7 @@ import type { TypeCatalog } from "../types/type-catalog.ts";
 import type { SettingsService } from "../settings/settings-service.ts";
 import { evaluateTube, mergeTestConditions, type SectionReading, type TestConditions, type TubeResult, type VerdictThresholds } from "../engine/verdicts/index.ts";
 import { formatQuantity } from "../engine/units/index.ts";
+import { bulkWriteGate } from "../db/write-gate.ts";
 import type { TubeTypeSpec } from "../engine/tube-types/index.ts";
 
 export interface StoredReading {
@@ -149,6 +150,8 @@ export class VerdictService {
    * Runs in its own transaction unless the caller is already inside one on this connection.
    */
   async recompute(tubeIds?: number[]): Promise<void> {
+    // Not inside an import's or a restore's transaction: wait until it has ended.
+    await bulkWriteGate(this.sqlite).idle();
     const thresholds = await this.settings.thresholds();
     this.recomputeWith(thresholds, tubeIds);
   }
