@@ -183,6 +183,8 @@ export interface TypeDetailView {
   typical: TypicalRow[];
   /** Shown when any section has a label, its own ratings or glow data. */
   sections: SectionRow[];
+  /** Some section carries its own ratings (the envelope may state none). */
+  ratedPerSection: boolean;
   pins: Array<{ pin: string; element: string; elementName: string; section: string; role: string }>;
   diagram: PinDiagram;
   sources: Array<{ text: string; covers: string }>;
@@ -248,6 +250,7 @@ export function typeDetailView(entry: TypeEntryLike, all: readonly TypeEntryLike
     variantOf: spec.variantOf ? { designation: spec.variantOf, href: typeHref(spec.variantOf) } : null,
     variants: all.filter((other) => other.spec.variantOf === entry.designation).map((other) => ({ designation: other.designation, href: typeHref(other.designation) })),
     ratings: ratingRows(spec.maxRatings),
+    ratedPerSection: spec.sections.some((section) => section.maxRatings !== undefined && Object.keys(section.maxRatings).length > 0),
     sections: spec.sections.some((section) => section.label !== undefined || section.maxRatings !== undefined || section.glow !== undefined || section.cutoff !== undefined)
       ? spec.sections.map(sectionRow)
       : [],

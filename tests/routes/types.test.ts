@@ -145,6 +145,13 @@ describe("a type's page", () => {
     expect((await t.app.inject({ url: "/types/NOSUCH" })).statusCode).toBe(404);
   });
 
+  it("sends a mixed envelope's ratings to its sections", async () => {
+    // pentodes.json — 6BM8: per-section ratings only (triode 1 W, pentode 7 W), as the entry's sources say.
+    const page = decoded((await t.app.inject({ url: "/types/6BM8" })).body);
+    expect(page).toContain("Rated per section: see Sections below.");
+    expect(page).toMatch(/<td>triode<\/td><td><\/td><td>Plate dissipation 1 W/);
+  });
+
   it("draws a top cap and an octal spigot", async () => {
     const html = (await t.app.inject({ url: "/types/6J7" })).body;
     expect(html).toContain("top cap: control grid");
