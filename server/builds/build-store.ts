@@ -6,6 +6,7 @@
 import type Database from "better-sqlite3";
 import type { AllocatedTube, AllocationSlot, HeaterSupplyPlan, SectionBalanceReading, StockTube } from "../engine/build-check/index.ts";
 import type { TypeCatalog } from "../types/type-catalog.ts";
+import { mergeTestConditions } from "../engine/verdicts/index.ts";
 
 export interface StoredLine {
   id: number;
@@ -161,7 +162,7 @@ export class BuildStore {
         const probe: ReadingRow = { tubeId: 0, sessionId, section: 0, gmMicroSiemens: kind === "gm" ? 1 : null, emissionValue: kind === "emission" ? 1 : null, emissionFullScale: fullScale };
         const session = sessionById.get(sessionId);
         // A reading's own conditions override the session's field by field, as its verdict does.
-        const judged = session === undefined ? undefined : { id: session.id, plateVolts: own.plateVolts ?? session.plateVolts, gridVolts: own.gridVolts ?? session.gridVolts, screenVolts: own.screenVolts ?? session.screenVolts };
+        const judged = session === undefined ? undefined : { id: session.id, ...mergeTestConditions(session, own) };
         text = basisOf(probe, judged).basis;
         basisCache.set(key, text);
       }

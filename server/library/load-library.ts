@@ -251,10 +251,6 @@ function checkPins(spec: TubeTypeSpec, report: Report): void {
   }
 }
 
-function isColdCathode(spec: TubeTypeSpec): boolean {
-  return hasNoHeater(spec);
-}
-
 /** Pins of one section: its own electrodes plus common electrodes (no section), e.g. a shared cathode. */
 function sectionHas(spec: TubeTypeSpec, sectionIndex: number, elements: readonly PinElement[]): boolean {
   return spec.pins.some((pin: PinAssignment) => elements.includes(pin.element) && (pin.section === sectionIndex || pin.section === undefined));
@@ -338,7 +334,7 @@ function checkHeater(spec: TubeTypeSpec, report: Report): void {
   const filamentPins = count("f") + count("fct");
   const heater = spec.heater;
 
-  if (isColdCathode(spec)) {
+  if (hasNoHeater(spec)) {
     if (spec.class !== "voltage-regulator" && spec.class !== "thyratron") report("only cold-cathode regulators and thyratrons may have a 0 V, 0 A heater");
     if (heaterPins + filamentPins > 0) report("a 0 V, 0 A heater cannot have heater or filament pins");
     if (heater.directlyHeated || heater.centreTap || heater.warmUpSeconds) report("a cold-cathode type has no heater details");

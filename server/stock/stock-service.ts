@@ -31,12 +31,9 @@ type TubeWithType = {
   verdict: string; percent: number | null; type: { designation: string };
 };
 
+/** A tube read through Prisma, with its type, as the row every page shows. */
 export function toTubeRow(tube: TubeWithType): TubeRow {
-  return {
-    id: tube.id, label: tube.label, type: tube.type.designation, maker: tube.maker, dateCode: tube.dateCode,
-    location: tube.location, state: tube.state, notes: tube.notes, verdict: tube.verdict, verdictText: VERDICT_TEXT[tube.verdict] ?? tube.verdict, percentOfReference: tube.percent,
-    percentText: tube.percent === null ? "" : `${Math.round(tube.percent)} %`,
-  };
+  return listRow({ ...tube, designation: tube.type.designation });
 }
 
 const VERDICT_TEXT: Readonly<Record<string, string>> = { "not-comparable": "not comparable" };

@@ -255,28 +255,16 @@ describe("sources", () => {
 });
 
 // Invented test shapes (like the fixtures above): a heptode, a glow regulator and a display.
+/** The pentode fixture rewired as a pentagrid converter: signal grid g3 on pin 1, g4 and g5 joined inside. */
 function heptode(overrides: Partial<TubeTypeSpec> = {}): TubeTypeSpec {
-  return {
+  return pentode({
     designation: "TEST3",
-    aliases: [],
     class: "heptode",
-    base: "B7G",
-    pins: [
-      { pin: "1", element: "g3", section: 1 },
-      { pin: "2", element: "k", section: 1 },
-      { pin: "3", element: "h" },
-      { pin: "4", element: "h" },
-      { pin: "5", element: "a", section: 1 },
-      { pin: "6", element: "g2", section: 1 },
-      { pin: "7", element: "g1", section: 1 },
-    ],
+    pins: pentode().pins.map((pin) => (pin.pin === "1" ? { ...pin, element: "g3" } : pin.pin === "2" ? { ...pin, element: "g1" } : pin)),
     sections: [{ index: 1, kind: "heptode", typical: [{ plateVolts: 250, gridVolts: -1.5, screenVolts: 100, plateMilliamps: 3 }] }],
-    heater: { volts: 6.3, amps: 0.3 },
-    maxRatings: { plateWatts: 1 },
     notes: "g4 is joined to g2 inside and g5 to the cathode.",
-    sources: { pins: "from memory", heater: "from memory", maxRatings: "from memory", "sections.1.typical.0": "from memory" },
     ...overrides,
-  };
+  });
 }
 
 function glowRegulator(overrides: Partial<TubeTypeSpec> = {}): TubeTypeSpec {

@@ -177,14 +177,12 @@ function judgeCandidate(context: RankingContext, candidate: TubeTypeSpec): Candi
   let ratings = ratingsUnder(mappings.ok ? mappings.mappings[0] : undefined);
   reasons.push(...ratings.failures);
   const glowUnder = (sectionMapping: readonly SectionMappingEntry[]) => compareGlow(socketType, candidate, sectionMapping, context.operating);
-  if (mappings.ok) reasons.push(...glowUnder(firstMappingEntries(mappings.mappings[0])).failures);
+  if (mappings.ok) reasons.push(...glowUnder(mappingEntries(mappings.mappings[0])).failures);
 
   if (!candidateHeater.ok || !mappings.ok) return { designation: candidate.designation, reasons };
 
   const tolerances = socket.tolerances ?? DEFAULT_TOLERANCES;
   const distanceCache = new Map<Map<number, number>, number>();
-  const mappingEntries = (sectionMap: Map<number, number>): SectionMappingEntry[] =>
-    [...sectionMap].map(([socketSection, candidateSection]) => ({ socketSection, candidateSection }));
   const distanceOf = (sectionMap: Map<number, number>): number => {
     let distance = distanceCache.get(sectionMap);
     if (distance === undefined) {
@@ -254,7 +252,7 @@ function judgeCandidate(context: RankingContext, candidate: TubeTypeSpec): Candi
   return { designation: candidate.designation, relation: relation.relation, score, pins, heater, ratings: ratings.checks, characteristics, inStockGood, explanation };
 }
 
-function firstMappingEntries(sectionMap: ReadonlyMap<number, number>): SectionMappingEntry[] {
+function mappingEntries(sectionMap: ReadonlyMap<number, number>): SectionMappingEntry[] {
   return [...sectionMap].map(([socketSection, candidateSection]) => ({ socketSection, candidateSection }));
 }
 

@@ -7,6 +7,7 @@ import { describe, expect, it } from "vitest";
 import { GLOW_VOLTS_TOLERANCE, MAX_SECTION_MAPPINGS, rankSubstitutes, type SocketDescription, type SubstituteRanking } from "../../../server/engine/substitution/index.ts";
 import { elementName, sectionMaxRatings, type PinAssignment, type SectionSpec, type TubeTypeSpec } from "../../../server/engine/tube-types/index.ts";
 import { describeElement } from "../../../server/engine/substitution/format.ts";
+import { tube6AU6 } from "./fixtures.ts";
 import { enumerateSectionMappings } from "../../../server/engine/substitution/pin-fit.ts";
 
 function socket(overrides: Partial<SocketDescription> & Pick<SocketDescription, "socketType" | "heaterSupply">): SocketDescription {
@@ -234,15 +235,7 @@ describe("sharp and remote cutoff", () => {
     aliases: [],
     class: "pentode",
     base: "B7G",
-    pins: [
-      { pin: "1", element: "g1", section: 1 },
-      { pin: "2", element: "g3", section: 1 },
-      { pin: "3", element: "h" },
-      { pin: "4", element: "h" },
-      { pin: "5", element: "a", section: 1 },
-      { pin: "6", element: "g2", section: 1 },
-      { pin: "7", element: "k", section: 1 },
-    ],
+    pins: tube6AU6.pins, // the 7BK basing both types share
     sections: [{ index: 1, kind: "pentode", cutoff, typical: [] }],
     heater: { volts: 6.3, amps: 0.3 },
     maxRatings: {},
